@@ -1,0 +1,68 @@
+"""The ``parcelcast`` command line: a thin dispatcher over the library.
+
+Each command lives in its own module of this package, which provides
+``add_arguments(parser)`` and ``run(args) -> int``.  Modules are imported only
+when their command is used, so ``parcelcast --help`` stays fast (no xarray,
+matplotlib, cartopy or dask at start-up).
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+#: command name -> (module, one-line help)
+COMMANDS: dict[str, tuple[str, str]] = {
+    "advect": ("parcelcast.cli.advect", "horizontal advection (-V.grad T) on a level, map or point"),
+    "track": ("parcelcast.cli.track", "back or forward air-parcel trajectories"),
+    "profile": ("parcelcast.cli.profile", "analyse a vertical profile (CSV or analysis column)"),
+    "split": ("parcelcast.cli.split", "split a local temperature change into advective and other parts"),
+    "review": ("parcelcast.cli.review", "build a case review from a case TOML file"),
+    "demo": ("parcelcast.cli.demo", "build the invented demo scenario and run the main job on it"),
+}
+
+DISCLAIMER = (
+    "parcelcast output is guidance for trained forecasters, not an official forecast or "
+    "warning; defer to your national weather service and licensed practice."
+)
+
+
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """Build the parser; only ``command``'s module is imported (if given)."""
+    parser = argparse.ArgumentParser(
+        prog="parcelcast",
+        description="Why the air over a station is warming or cooling: advection, "
+        "trajectories, profiles and the local-trend split.",
+        epilog=DISCLAIMER,
+    )
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name, (module, help_text) in COMMANDS.items():
+        p = sub.add_parser(name, help=help_text, description=help_text, epilog=DISCLAIMER)
+        if name == command:
+            importlib.import_module(module).add_arguments(p)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point of the console script; returns the exit status."""
+    argv = list(sys.argv[1:] if argv is None else argv)
+    command = next((a for a in argv if not a.startswith("-")), None)
+    if command not in COMMANDS:
+        command = None
+    args = build_parser(command).parse_args(argv)
+    if args.command is None:
+        build_parser().print_help()
+        return 1
+    from parcelcast.errors import ParcelcastError
+
+    module = importlib.import_module(COMMANDS[args.command][0])
+    try:
+        return int(module.run(args) or 0)
+    except ParcelcastError as exc:
+        print(f"parcelcast {args.command}: error: {exc}", file=sys.stderr)
+        return 2
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

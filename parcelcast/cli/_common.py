@@ -1,0 +1,78 @@
+"""Argument parsing shared by the commands (points, times, variable overrides, JSON)."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+
+
+def lat_lon(text: str) -> tuple[float, float]:
+    """Parse ``LAT,LON`` in degrees (north and east positive)."""
+    try:
+        lat_text, lon_text = text.split(",")
+        lat, lon = float(lat_text), float(lon_text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(
+            f"expected LAT,LON in degrees such as 52.1,-1.5; got {text!r}"
+        ) from None
+    if not -90.0 <= lat <= 90.0:
+        raise argparse.ArgumentTypeError(f"latitude {lat} is outside -90..90")
+    return lat, lon
+
+
+def utc_time(text: str):
+    """Parse an ISO 8601 time; a time without a zone is UTC. Returns a naive UTC numpy datetime64."""
+    import numpy as np
+    import pandas as pd
+
+    try:
+        stamp = pd.Timestamp(text)
+    except (ValueError, TypeError):
+        raise argparse.ArgumentTypeError(
+            f"expected an ISO 8601 time such as 2017-01-01T12:00 (UTC unless a zone is given); got {text!r}"
+        ) from None
+    if stamp.tzinfo is not None:
+        stamp = stamp.tz_convert("UTC").tz_localize(None)
+    return np.datetime64(stamp.to_datetime64(), "ns")
+
+
+def variable_override(text: str) -> tuple[str, str]:
+    """Parse ``ROLE=NAME`` for ``--var`` (e.g. ``temperature=TMP_850``)."""
+    if "=" not in text:
+        raise argparse.ArgumentTypeError(f"expected ROLE=NAME such as temperature=t; got {text!r}")
+    role, name = text.split("=", 1)
+    return role.strip(), name.strip()
+
+
+def add_input_arguments(parser: argparse.ArgumentParser) -> None:
+    """FILE... and --var, shared by every command that reads analyses."""
+    parser.add_argument("files", nargs="+", metavar="FILE",
+                        help="analysis files (NetCDF or GRIB); globs allowed; combined along time")
+    parser.add_argument("--var", action="append", type=variable_override, default=[],
+                        metavar="ROLE=NAME",
+                        help="name the file's variable for a role (temperature, u, v, geopotential, "
+                        "omega, ...); repeatable")
+
+
+def iso_utc(value) -> str:
+    """Format a numpy/pandas time as ISO 8601 UTC with a trailing Z."""
+    import pandas as pd
+
+    return pd.Timestamp(value).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def json_number(value, digits: int = 6):
+    """A float for JSON: rounded, with NaN/inf as null (missing stays missing)."""
+    if value is None:
+        return None
+    value = float(value)
+    if not math.isfinite(value):
+        return None
+    return round(value, digits)
+
+
+def print_json(obj) -> None:
+    json.dump(obj, sys.stdout, indent=2, allow_nan=False)
+    sys.stdout.write("\n")

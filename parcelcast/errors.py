@@ -1,0 +1,101 @@
+"""Errors and warnings of parcelcast.
+
+Every error a user can meet derives from :class:`ParcelcastError` and carries
+the facts needed to act on it (which file, which variable, what was expected,
+what was found) as attributes as well as in its message.  The command line
+turns any ``ParcelcastError`` into a one-paragraph message and exit status 2.
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Iterable
+
+
+class ParcelcastError(Exception):
+    """Base class for errors a user can act on."""
+
+
+class InputFileError(ParcelcastError):
+    """A file cannot be opened or decoded (missing, damaged, unknown format)."""
+
+    def __init__(self, path, reason: str):
+        self.path = str(path)
+        self.reason = reason
+        super().__init__(f"{self.path}: {reason}")
+
+
+class VariableNotFoundError(ParcelcastError):
+    """A quantity the calculation needs is not in the input."""
+
+    def __init__(self, role: str, source: str, found: Iterable[str], hint: str = ""):
+        self.role = role
+        self.source = source
+        self.found = sorted(found)
+        msg = (
+            f"{source}: no variable for '{role}' was found. Variables present: "
+            f"{', '.join(self.found) or '(none)'}. Name it with --var {role}=NAME"
+        )
+        if hint:
+            msg += f" ({hint})"
+        super().__init__(msg + ".")
+
+
+class UnitsError(ParcelcastError):
+    """Units are missing, unknown, or impossible for the quantity."""
+
+    def __init__(self, quantity: str, found: str | None, expected: str, source: str = ""):
+        self.quantity = quantity
+        self.found = found
+        self.expected = expected
+        self.source = source
+        where = f"{source}: " if source else ""
+        if found is None or found == "":
+            what = "has no units"
+        else:
+            what = f"has units '{found}'"
+        super().__init__(
+            f"{where}{quantity} {what}; expected units of {expected}. "
+            "State the units (for example add a CF 'units' attribute)."
+        )
+
+
+class ImplausibleValuesError(ParcelcastError):
+    """Values are impossible for the stated units (e.g. degC data labelled K)."""
+
+    def __init__(self, quantity: str, source: str, detail: str):
+        self.quantity = quantity
+        self.source = source
+        super().__init__(f"{source}: {quantity} values are implausible: {detail}")
+
+
+class SelectionError(ParcelcastError):
+    """A requested level, time, member or point is not available."""
+
+    def __init__(self, what: str, requested, available: str, source: str = ""):
+        self.what = what
+        self.requested = requested
+        self.available = available
+        where = f"{source}: " if source else ""
+        super().__init__(f"{where}{what} {requested} is not available; available: {available}.")
+
+
+class IncompleteInputError(ParcelcastError):
+    """Input opened only in part (e.g. a damaged GRIB file) and lacks what is needed."""
+
+
+class GridError(ParcelcastError):
+    """The grid cannot be understood or is unsuitable for the operation."""
+
+
+class ProfileError(ParcelcastError):
+    """A vertical profile is invalid (with the offending row where known)."""
+
+
+class ParcelcastWarning(UserWarning):
+    """Warnings from parcelcast (turned into errors in the project's own tests)."""
+
+
+def warn(message: str, stacklevel: int = 2) -> None:
+    """Emit a :class:`ParcelcastWarning` pointing at the caller's line."""
+    warnings.warn(message, ParcelcastWarning, stacklevel=stacklevel + 1)

@@ -1,0 +1,1 @@
+"""Reading analyses and profiles into canonical form, and writing outputs atomically."""

@@ -1,0 +1,39 @@
+"""Write outputs whole or not at all: write to a temporary file beside the target, then rename."""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import tempfile
+from pathlib import Path
+
+
+@contextlib.contextmanager
+def atomic_path(target):
+    """Yield a temporary path in the target's folder; on success rename it onto ``target``.
+
+    If the block raises, the temporary file is removed and ``target`` is left
+    untouched (an earlier complete file stays as it was).
+
+    Example
+    -------
+    >>> with atomic_path("out.nc") as tmp:          # doctest: +SKIP
+    ...     dataset.to_netcdf(tmp)
+    """
+    target = Path(target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    os.close(fd)
+    tmp = Path(tmp_name)
+    try:
+        yield tmp
+        os.replace(tmp, target)
+    finally:
+        if tmp.exists():
+            tmp.unlink()
+
+
+def write_text(target, text: str) -> None:
+    """Write ``text`` to ``target`` atomically (UTF-8)."""
+    with atomic_path(target) as tmp:
+        tmp.write_text(text, encoding="utf-8")
