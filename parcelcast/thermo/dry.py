@@ -51,7 +51,7 @@ def potential_temperature(temperature, pressure):
     Examples
     --------
     >>> round(float(potential_temperature(273.15, 85000.0)), 2)
-    286.59
+    286.14
     """
     return _f(temperature) * (P0 / _f(pressure)) ** KAPPA
 
