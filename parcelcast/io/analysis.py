@@ -1,0 +1,347 @@
+"""Open analyses (NetCDF or GRIB; one file, several, or a glob) into the canonical form.
+
+The canonical form is described in ``design_notes/canonical_dataset.md``:
+coordinates ``member, time, level (Pa, descending), lat (ascending), lon``
+and float64 SI variables named by role (``temperature``, ``u``, ``v``,
+``geopotential``, ``omega``, ...).  Conversions go through pint; values that
+are impossible for their stated units are refused; missing values stay NaN.
+"""
+
+from __future__ import annotations
+
+import glob
+import warnings
+from pathlib import Path
+
+import numpy as np
+import xarray as xr
+
+from parcelcast.constants import STANDARD_GRAVITY
+from parcelcast.errors import (
+    ImplausibleValuesError,
+    IncompleteInputError,
+    InputFileError,
+    ParcelcastError,
+    UnitsError,
+    VariableNotFoundError,
+)
+from parcelcast.io import coords as coordinates
+from parcelcast.io.roles import ROLES, Role
+from parcelcast.units import QUANTITY_KINDS, convert, parse_units
+
+#: plausible range of each role's canonical SI values (checked on the first time step).
+#: Sources: common meteorological practice (observed extremes of the troposphere and
+#: lower stratosphere: about 170-340 K; winds below ~130 m/s; omega below ~10 Pa/s).
+PLAUSIBLE_RANGE = {
+    "temperature": (150.0, 350.0),
+    "near_surface_temperature": (180.0, 345.0),
+    "u": (-150.0, 150.0),
+    "v": (-150.0, 150.0),
+    "omega": (-30.0, 30.0),
+    "vertical_velocity": (-50.0, 50.0),
+    "relative_humidity": (0.0, 1.5),
+    "specific_humidity": (0.0, 0.06),
+    "surface_pressure": (40_000.0, 110_000.0),
+}
+
+
+def expand_paths(paths) -> list[Path]:
+    """Expand globs; every pattern must match at least one existing file."""
+    if isinstance(paths, (str, Path)):
+        paths = [paths]
+    found: list[Path] = []
+    for item in paths:
+        text = str(item)
+        if any(ch in text for ch in "*?["):
+            matches = sorted(glob.glob(text))
+            if not matches:
+                raise InputFileError(text, "the pattern matches no file")
+            found.extend(Path(m) for m in matches)
+        else:
+            path = Path(text)
+            if not path.is_file():
+                raise InputFileError(path, "no such file")
+            found.append(path)
+    return found
+
+
+def detect_format(path: Path) -> str:
+    """'grib' or 'netcdf' from the first bytes of the file."""
+    with open(path, "rb") as handle:
+        head = handle.read(8)
+    if head.startswith(b"GRIB"):
+        return "grib"
+    if head[:3] == b"CDF" or head.startswith(b"\x89HDF"):
+        return "netcdf"
+    raise InputFileError(path, "not a NetCDF or GRIB file (unrecognised first bytes)")
+
+
+def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
+                  allow_damaged: bool = False, chunks=None) -> xr.Dataset:
+    """Open analysis files into one canonical dataset, combined along time.
+
+    Parameters
+    ----------
+    paths : str, Path or list of them
+        Files or glob patterns (NetCDF classic/netCDF-4, GRIB 1/2).
+    overrides : dict, optional
+        ``{role: variable_name}`` naming a file's variable for a role
+        (``{"temperature": "TMP"}``); the command line's ``--var``.
+    roles : iterable of str, optional
+        Roles to look for (default: all known).  Missing roles are simply absent;
+        callers ask for what they need with :func:`require`.
+    allow_damaged : bool
+        A GRIB file in which some messages cannot be decoded is refused unless
+        this is True (then the dataset's ``damaged`` attribute says what was lost).
+    chunks : dict, optional
+        Passed to xarray for dask-backed arrays (e.g. ``{"time": 1}``).
+
+    Returns
+    -------
+    xarray.Dataset
+        Canonical dataset; attrs ``source_files`` and ``missing_values``
+        (count of NaN per variable, as text).
+    """
+    overrides = dict(overrides or {})
+    unknown = set(overrides) - set(ROLES)
+    if unknown:
+        raise ParcelcastError(
+            f"unknown role(s) in --var: {', '.join(sorted(unknown))}; "
+            f"known roles: {', '.join(ROLES)}"
+        )
+    wanted = list(roles) if roles is not None else list(ROLES)
+    files = expand_paths(paths)
+    pieces = [_open_one(path, overrides, wanted, allow_damaged, chunks) for path in files]
+    ds = pieces[0] if len(pieces) == 1 else _combine_along_time(pieces, files)
+    ds.attrs["source_files"] = ";".join(str(p) for p in files)
+    ds.attrs["Conventions"] = "CF-1.10"
+    ds.attrs["missing_values"] = "; ".join(
+        f"{name}: {int(ds[name].isnull().sum())}" for name in ds.data_vars
+    )
+    return ds
+
+
+def require(ds: xr.Dataset, *roles: str, purpose: str = "") -> None:
+    """Raise a clear error if any of ``roles`` is missing from a canonical dataset."""
+    missing = [r for r in roles if r not in ds.data_vars]
+    if not missing:
+        return
+    source = ds.attrs.get("source_files", "input")
+    if ds.attrs.get("damaged"):
+        raise IncompleteInputError(
+            f"{source}: the file is damaged ({ds.attrs['damaged']}); "
+            f"missing for {purpose or 'this calculation'}: {', '.join(missing)}"
+        )
+    raw = ds.attrs.get("raw_variables", "")
+    raise VariableNotFoundError(
+        missing[0], source, raw.split(",") if raw else list(ds.data_vars),
+        hint=f"needed for {purpose}" if purpose else "",
+    )
+
+
+# --------------------------------------------------------------------------------------
+def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Dataset:
+    fmt = detect_format(path)
+    damaged = ""
+    if fmt == "grib":
+        from parcelcast.io.grib import open_grib
+
+        groups = open_grib(path)
+        upper = [coordinates.standardise(g, path) for g in groups.upper]
+        single = [coordinates.standardise(g, path) for g in groups.single]
+        if groups.scan.damaged:
+            damaged = (
+                f"{groups.scan.decoded} GRIB message(s) decoded, {groups.scan.failed} could not be "
+                f"({groups.scan.problem}); readable: {groups.scan.summary() or 'nothing'}"
+            )
+            if not allow_damaged:
+                raise IncompleteInputError(
+                    f"{path}: the GRIB file is damaged and opens only in part: {damaged}. "
+                    "Fields and levels beyond those listed are missing; refusing to compute "
+                    "from incomplete input."
+                )
+    else:
+        try:
+            with warnings.catch_warnings():
+                # a NaN _FillValue is dropped by xarray with a warning: NaN stays NaN anyway
+                warnings.filterwarnings("ignore", category=xr.SerializationWarning)
+                raw = xr.open_dataset(path, engine="netcdf4", chunks=chunks, decode_timedelta=True)
+        except Exception as exc:
+            raise InputFileError(path, f"NetCDF could not be read: {exc}") from None
+        std = coordinates.standardise(raw, path)
+        upper = [std]
+        single = [std]
+    raw_names = sorted({n for part in upper + single for n in part.data_vars})
+    found = {}
+    for role_name in wanted:
+        role = ROLES[role_name]
+        var = _find_role(role, upper if role.on_levels else single, overrides, path)
+        if var is not None:
+            found[role_name] = _to_canonical(var, role, path)
+    for role_name, name in overrides.items():
+        if role_name in wanted and role_name not in found:
+            raise VariableNotFoundError(role_name, str(path), raw_names,
+                                        hint=f"--var {role_name}={name} names no variable")
+    if not found:
+        raise VariableNotFoundError(", ".join(wanted), str(path), raw_names,
+                                    hint="no known quantity was recognised")
+    ds = xr.Dataset(found)
+    ds = coordinates.normalise(ds, path)
+    for name in ds.data_vars:
+        _check_plausible(ds[name], name, path)
+    ds.attrs["raw_variables"] = ",".join(raw_names)
+    if damaged:
+        ds.attrs["damaged"] = damaged
+    return ds
+
+
+def _find_role(role: Role, parts: list[xr.Dataset], overrides, path: Path):
+    """Return the variable for ``role`` from the first part where it matches, else None."""
+    if role.name in overrides:
+        name = overrides[role.name]
+        for part in parts:
+            if name in part.data_vars:
+                return part[name]
+        return None
+    matchers = (
+        lambda n, v: v.attrs.get("standard_name") in role.standard_names,
+        lambda n, v: v.attrs.get("GRIB_shortName") in role.grib_short_names,
+        lambda n, v: n.lower() in role.common_names,
+    )
+    kinds = (role.kind, *role.also_kinds)
+    for match in matchers:
+        for part in parts:
+            for name, var in part.data_vars.items():
+                if role.on_levels and "level" not in var.dims and "level" not in var.coords:
+                    continue
+                if not role.on_levels and "level" in var.dims:
+                    continue
+                if match(name, var) and _units_fit(var, kinds):
+                    return var
+    return None
+
+
+def _units_fit(var: xr.DataArray, kinds) -> bool:
+    """True if the variable's units suit one of ``kinds`` (missing units: undecided -> True)."""
+    units = var.attrs.get("units") or var.attrs.get("GRIB_units")
+    if not units:
+        return True
+    try:
+        parsed = parse_units(units)
+    except UnitsError:
+        return True  # reported properly when converted
+    from parcelcast.units import registry
+
+    ureg = registry()
+    return any(parsed.dimensionality == ureg.parse_units(QUANTITY_KINDS[k][1]).dimensionality
+               for k in kinds)
+
+
+def _to_canonical(var: xr.DataArray, role: Role, path: Path) -> xr.DataArray:
+    """Convert to the role's SI unit (affine, so dask arrays stay lazy) and set CF attrs."""
+    source = f"{path} variable '{var.name}'"
+    units = var.attrs.get("units") or var.attrs.get("GRIB_units")
+    kinds = (role.kind, *role.also_kinds)
+    out = None
+    for kind in kinds:
+        try:
+            zero, one = convert([0.0, 1.0], units, kind, role.name, source)
+        except UnitsError as exc:
+            error = exc
+            continue
+        out = var.astype(np.float64) * (one - zero) + zero
+        if kind == "height" and role.name == "geopotential":
+            out = out * STANDARD_GRAVITY  # geopotential height (gpm) -> geopotential
+        break
+    if out is None:
+        if not units:
+            raise UnitsError(role.name, None, f"{role.kind} ({QUANTITY_KINDS[role.kind][1]})", source)
+        raise UnitsError(role.name, units,
+                         " or ".join(f"{k} ({QUANTITY_KINDS[k][1]})" for k in kinds), source) from error
+    out.attrs = {
+        "units": role.units,
+        "standard_name": role.standard_name,
+        "long_name": role.long_name,
+        "source": source + (f" ({units})" if units else ""),
+    }
+    out.encoding = {}
+    out.name = role.name
+    return out
+
+
+def _check_plausible(da: xr.DataArray, name: str, path: Path) -> None:
+    sample = da
+    for dim in ("member", "time"):
+        if dim in sample.dims:
+            sample = sample.isel({dim: 0})
+    values = np.asarray(sample.values, dtype=np.float64)
+    if not np.isfinite(values).any():
+        return
+    lo, hi = float(np.nanmin(values)), float(np.nanmax(values))
+    source = f"{path} ({da.attrs.get('source', name)})"
+    if name in PLAUSIBLE_RANGE:
+        low, high = PLAUSIBLE_RANGE[name]
+        if lo < low or hi > high:
+            hint = ""
+            if name in ("temperature", "near_surface_temperature") and hi < 100:
+                hint = " (these look like degrees Celsius labelled as kelvin: correct the units)"
+            raise ImplausibleValuesError(
+                name, source,
+                f"range {lo:.4g} .. {hi:.4g} {da.attrs['units']} after conversion; "
+                f"expected within {low:g} .. {high:g}{hint}",
+            )
+    if name == "geopotential" and "level" in sample.coords:
+        _check_geopotential(sample, source)
+
+
+def _check_geopotential(sample: xr.DataArray, source: str) -> None:
+    """Compare with the standard-atmosphere height of each level (factor-of-g0 slips)."""
+    levels = np.atleast_1d(sample["level"].values)
+    for i, p in enumerate(levels):
+        if not 10_000.0 <= p <= 85_000.0:
+            continue
+        # US Standard Atmosphere 1976, troposphere: z = (T0/L) (1 - (p/p0)^(R L / g0))
+        standard_height = 44_330.8 * (1.0 - (p / 101_325.0) ** 0.190263)
+        layer = sample.isel(level=i) if "level" in sample.dims else sample
+        height = float(np.nanmedian(layer.values)) / STANDARD_GRAVITY
+        if not 0.5 * standard_height < height < 2.0 * standard_height:
+            raise ImplausibleValuesError(
+                "geopotential", source,
+                f"at {p / 100:g} hPa the median is {height:.0f} m of height after conversion, "
+                f"the standard atmosphere has {standard_height:.0f} m: geopotential (m2 s-2) and "
+                "geopotential height (m) may be confused; correct the units",
+            )
+
+
+def _combine_along_time(pieces: list[xr.Dataset], files: list[Path]) -> xr.Dataset:
+    names = [set(p.data_vars) for p in pieces]
+    common = set.intersection(*names)
+    if not common:
+        raise ParcelcastError("the files share no quantity: "
+                              + "; ".join(f"{f}: {sorted(n)}" for f, n in zip(files, names)))
+    for f, p in zip(files, pieces):
+        if "time" not in p.dims:
+            raise ParcelcastError(f"{f}: has no time coordinate; cannot combine files along time")
+    reference = pieces[0]
+    for f, p in zip(files[1:], pieces[1:]):
+        for c in ("lat", "lon", "level"):
+            if c in reference.coords and c in p.coords and not (
+                reference[c].shape == p[c].shape and np.allclose(reference[c], p[c])
+            ):
+                raise ParcelcastError(f"{f}: its {c} coordinate differs from that of {files[0]}")
+    dropped = set.union(*names) - common
+    combined = xr.concat([p[sorted(common)] for p in pieces], dim="time", join="outer",
+                         data_vars="all", coords="different", compat="equals",
+                         combine_attrs="drop_conflicts")
+    combined = combined.sortby("time")
+    times = combined["time"].values
+    if len(np.unique(times)) != len(times):
+        _, first = np.unique(times, return_index=True)
+        dup = sorted(set(range(len(times))) - set(first))
+        raise ParcelcastError(
+            f"the same valid time occurs in more than one file: "
+            f"{', '.join(str(times[i])[:19] for i in dup)}"
+        )
+    if dropped:
+        combined.attrs["not_in_every_file"] = ",".join(sorted(dropped))
+    return combined

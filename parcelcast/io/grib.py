@@ -1,0 +1,148 @@
+"""GRIB (editions 1 and 2) through cfgrib/eccodes, without touching the user's folder.
+
+cfgrib splits a file into groups of fields that share a level type and level
+set; we open them all (``cfgrib.open_datasets``) and keep the isobaric groups
+(upper-air fields) and the single-level groups (surface, 2 m) apart.  Index
+files go to our own cache folder, never next to the input.
+
+A damaged file may open in part without complaint; :func:`scan_messages`
+walks the file with eccodes and reports what could not be decoded.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import logging
+import os
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from parcelcast.errors import InputFileError
+
+_LEVEL_TYPES_UPPER = ("isobaricInhPa", "isobaricInPa")
+_LEVEL_TYPES_SINGLE = ("surface", "heightAboveGround")
+
+
+def index_cache_dir() -> Path:
+    """Folder for cfgrib index files (``PARCELCAST_CACHE`` or ``~/.cache/parcelcast``)."""
+    root = os.environ.get("PARCELCAST_CACHE") or Path.home() / ".cache" / "parcelcast"
+    path = Path(root) / "grib-index"
+    path.mkdir(parents=True, exist_ok=True)
+    return path
+
+
+def _index_path(path: Path) -> str:
+    stat = path.stat()
+    key = f"{path.resolve()}|{stat.st_size}|{stat.st_mtime_ns}".encode()
+    digest = hashlib.sha1(key).hexdigest()[:16]
+    # cfgrib fills {short_hash} with a hash of the filter keys.
+    return str(index_cache_dir() / f"{path.name}.{digest}.{{short_hash}}.idx")
+
+
+@dataclass
+class GribScan:
+    """What a walk through a GRIB file found: decoded fields and undecodable messages."""
+
+    decoded: int = 0
+    failed: int = 0
+    problem: str = ""
+    fields: list[str] = field(default_factory=list)
+
+    @property
+    def damaged(self) -> bool:
+        return self.failed > 0
+
+    def summary(self, limit: int = 12) -> str:
+        """Readable fields grouped by name and level type, e.g. ``t@isobaricInhPa: 500``."""
+        groups: dict[str, list[str]] = {}
+        for item in self.fields:
+            name, level = item.rsplit(":", 1)
+            groups.setdefault(name, []).append(level)
+        parts = [f"{name} ({', '.join(levels)})" for name, levels in groups.items()]
+        more = f" and {len(parts) - limit} more" if len(parts) > limit else ""
+        return "; ".join(parts[:limit]) + more
+
+
+def _message_length(data: bytes, offset: int) -> int:
+    """Total length in bytes of the GRIB message starting at ``offset`` (0 if unreadable)."""
+    edition = data[offset + 7] if offset + 8 <= len(data) else 0
+    if edition == 1:
+        return int.from_bytes(data[offset + 4:offset + 7], "big")
+    if edition == 2:
+        return int.from_bytes(data[offset + 8:offset + 16], "big")
+    return 0
+
+
+def scan_messages(path: Path) -> GribScan:
+    """Walk the file message by message, decoding each with eccodes.
+
+    A message whose stated length runs past the end of the file, lacks its
+    ``7777`` end marker, or does not decode counts as failed; the walk then
+    resumes at the next ``GRIB`` marker so later intact messages are still seen.
+    """
+    import eccodes
+
+    scan = GribScan()
+    data = path.read_bytes()
+    offset = data.find(b"GRIB")
+    while offset >= 0:
+        length = _message_length(data, offset)
+        message = data[offset:offset + length] if length else b""
+        ok = length > 0 and offset + length <= len(data) and message.endswith(b"7777")
+        if ok:
+            try:
+                gid = eccodes.codes_new_from_message(message)
+                try:
+                    name = eccodes.codes_get(gid, "shortName")
+                    ltype = eccodes.codes_get(gid, "typeOfLevel")
+                    level = eccodes.codes_get(gid, "level")
+                finally:
+                    eccodes.codes_release(gid)
+                scan.fields.append(f"{name}@{ltype}:{level}")
+                scan.decoded += 1
+                offset = data.find(b"GRIB", offset + length)
+                continue
+            except Exception as exc:  # eccodes raises its own error classes
+                scan.problem = scan.problem or f"message at byte {offset}: {exc}"
+        else:
+            scan.problem = scan.problem or (
+                f"message at byte {offset} is truncated or malformed "
+                f"(stated length {length}, file size {len(data)})"
+            )
+        scan.failed += 1
+        offset = data.find(b"GRIB", offset + 4)
+    return scan
+
+
+@dataclass
+class GribGroups:
+    """The upper-air (isobaric) and single-level parts of one GRIB file."""
+
+    upper: list  # list[xarray.Dataset]
+    single: list  # list[xarray.Dataset]
+    scan: GribScan
+
+
+def open_grib(path: Path) -> GribGroups:
+    """Open every field group of a GRIB file; raise InputFileError if nothing decodes."""
+    import cfgrib
+
+    scan = scan_messages(path)
+    if scan.decoded == 0:
+        raise InputFileError(path, f"no GRIB message could be decoded ({scan.problem or 'empty file'})")
+    logging.getLogger("cfgrib").setLevel(logging.CRITICAL)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            groups = cfgrib.open_datasets(str(path), indexpath=_index_path(path), cache_geo_coords=True)
+    except Exception as exc:
+        raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
+    upper, single = [], []
+    for group in groups:
+        level_types = {v.attrs.get("GRIB_typeOfLevel") for v in group.data_vars.values()}
+        if level_types & set(_LEVEL_TYPES_UPPER):
+            upper.append(group)
+        elif level_types & set(_LEVEL_TYPES_SINGLE):
+            single.append(group)
+    return GribGroups(upper=upper, single=single, scan=scan)

@@ -1,0 +1,76 @@
+"""Declarative table: how each quantity (role) is recognised in a file.
+
+A role is found by, in order: a user override (``--var ROLE=NAME``), the CF
+``standard_name``, the GRIB ``shortName`` (``GRIB_shortName`` attribute of
+cfgrib) and common variable names.  Units then decide between candidates that
+share a name (GRIB ``w`` is omega in Pa/s; a ``w`` in m/s is a vertical velocity).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Role:
+    """How to recognise one quantity and what it becomes in the canonical dataset."""
+
+    name: str
+    standard_names: tuple[str, ...]
+    grib_short_names: tuple[str, ...]
+    common_names: tuple[str, ...]
+    kind: str  # unit kind in parcelcast.units.QUANTITY_KINDS (the canonical SI unit)
+    units: str  # canonical units attribute
+    standard_name: str
+    long_name: str
+    on_levels: bool  # True: a pressure-level field; False: a single-level (surface) field
+    also_kinds: tuple[str, ...] = ()  # other acceptable unit kinds (converted, see analysis.py)
+
+
+ROLES: dict[str, Role] = {
+    r.name: r
+    for r in (
+        Role("temperature", ("air_temperature",), ("t",),
+             ("t", "temp", "temperature", "air", "ta", "tmp", "air_temperature"),
+             "temperature", "K", "air_temperature", "air temperature", True),
+        Role("u", ("eastward_wind", "grid_eastward_wind"), ("u",),
+             ("u", "uwnd", "ua", "ugrd", "u_wind", "eastward_wind"),
+             "speed", "m s-1", "eastward_wind", "eastward wind", True),
+        Role("v", ("northward_wind", "grid_northward_wind"), ("v",),
+             ("v", "vwnd", "va", "vgrd", "v_wind", "northward_wind"),
+             "speed", "m s-1", "northward_wind", "northward wind", True),
+        Role("geopotential", ("geopotential", "geopotential_height"), ("z", "gh"),
+             ("z", "gh", "geopotential", "geopotential_height", "hgt", "zg", "phi", "height"),
+             "geopotential", "m2 s-2", "geopotential", "geopotential", True,
+             also_kinds=("height",)),
+        Role("omega", ("lagrangian_tendency_of_air_pressure",), ("w",),
+             ("omega", "w", "wap", "vvel"),
+             "pressure_tendency", "Pa s-1", "lagrangian_tendency_of_air_pressure",
+             "vertical velocity in pressure coordinates (omega)", True),
+        Role("vertical_velocity", ("upward_air_velocity",), ("wz",),
+             ("wz", "wa", "dzdt", "w", "upward_air_velocity"),
+             "speed", "m s-1", "upward_air_velocity", "upward air velocity", True),
+        Role("relative_humidity", ("relative_humidity",), ("r",),
+             ("r", "rh", "hur", "relative_humidity"),
+             "fraction", "1", "relative_humidity", "relative humidity", True),
+        Role("specific_humidity", ("specific_humidity",), ("q",),
+             ("q", "hus", "shum", "spfh", "specific_humidity"),
+             "mixing_ratio", "kg kg-1", "specific_humidity", "specific humidity", True),
+        Role("surface_pressure", ("surface_air_pressure",), ("sp",),
+             ("sp", "ps", "psfc", "surface_pressure"),
+             "pressure", "Pa", "surface_air_pressure", "surface pressure", False),
+        Role("near_surface_temperature", (), ("2t", "t2m"),
+             ("t2m", "2t", "tas", "t2", "temperature_2m"),
+             "temperature", "K", "air_temperature", "air temperature at 2 m", False),
+    )
+}
+
+#: Coordinate recognition: role -> (standard_names, names, axis)
+COORDINATES: dict[str, tuple[tuple[str, ...], tuple[str, ...], str]] = {
+    "lat": (("latitude",), ("latitude", "lat", "nav_lat", "xlat", "lats"), "Y"),
+    "lon": (("longitude",), ("longitude", "lon", "nav_lon", "xlong", "lons"), "X"),
+    "level": (("air_pressure",),
+              ("isobaricinhpa", "isobaricinpa", "level", "plev", "pressure", "lev", "pressure_level",
+               "isobaric", "pres"), "Z"),
+    "member": (("realization",), ("number", "member", "realization", "ensemble_member", "ens"), ""),
+}
