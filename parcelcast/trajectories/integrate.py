@@ -129,7 +129,9 @@ def _break_times(t0, t1, times, out_times, steady):
     if not steady:
         pts.update(t for t in times.tolist() if lo < t < hi)
     pts.update((t0, t1))
-    ordered = sorted(pts, reverse=t1 < t0)
+    ordered = sorted(float(p) for p in pts)
+    if t1 < t0:
+        ordered.reverse()
     return ordered
 
 
