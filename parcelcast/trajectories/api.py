@@ -148,6 +148,10 @@ def compute_trajectories(
         la = np.tile(cl_lat, amembers.size)
         lo = np.tile(cl_lon, amembers.size)
         pp = p_start + np.tile(cl_dp, amembers.size)
+        if geom.levels is not None:
+            # cloud members are kept within the levels (the central start is checked as given)
+            pert = np.tile(np.arange(members) > 0, amembers.size)
+            pp = np.where(pert, np.clip(pp, geom.levels[-1], geom.levels[0]), pp)
         if mode == "isentropic":
             z = _theta_at(src, la, lo, pp, mem, s)
         else:

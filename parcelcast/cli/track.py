@@ -1,0 +1,108 @@
+"""``parcelcast track``: back or forward air-parcel trajectories from a point."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from parcelcast.cli._common import add_input_arguments, lat_lon, print_json, utc_time
+
+
+def _positive_hours(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a number of hours such as 24; got {text!r}") from None
+    if not value > 0:
+        raise argparse.ArgumentTypeError(f"hours must be positive; got {text!r}")
+    return value
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    add_input_arguments(parser)
+    parser.add_argument("--from", dest="point", type=lat_lon, required=True, metavar="LAT,LON",
+                        help="arrival point (with --back) or release point (with --ahead), degrees")
+    parser.add_argument("--level", type=float, required=True, metavar="HPA",
+                        help="pressure of the point in hPa, e.g. 850")
+    span = parser.add_mutually_exclusive_group(required=True)
+    span.add_argument("--back", type=_positive_hours, metavar="HOURS",
+                      help="back trajectory: where the air came from, this many hours earlier")
+    span.add_argument("--ahead", type=_positive_hours, metavar="HOURS",
+                      help="forward trajectory: where the air goes in this many hours")
+    parser.add_argument("--start", type=utc_time, metavar="ISO",
+                        help="arrival time for --back, release time for --ahead (UTC unless a zone "
+                        "is given); default: the last analysis time for --back, the first for --ahead")
+    parser.add_argument("--mode", choices=("isobaric", "3d", "isentropic"), default="isobaric",
+                        help="stay on the pressure level, move with omega, or stay on the "
+                        "potential-temperature surface (default: isobaric)")
+    parser.add_argument("--scheme", choices=("petterssen", "rk4"), default="petterssen",
+                        help="time stepping: iterative Petterssen or 4th-order Runge-Kutta")
+    parser.add_argument("--members", type=int, default=1, metavar="N",
+                        help="cloud of N starts around the point (half a grid length, +-5 hPa); "
+                        "every member of an ensemble analysis is run as well")
+    parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
+                        help="advecting wind: analysed or geostrophic from geopotential")
+    parser.add_argument("--every", type=_positive_hours, default=1.0, metavar="HOURS",
+                        help="spacing of the reported points (default 1 h)")
+    parser.add_argument("--ground", choices=("follow", "stop"), default="follow",
+                        help="parcels meeting the ground follow it (flagged) or stop there")
+    parser.add_argument("--json", action="store_true", help="print the JSON summary")
+    parser.add_argument("--out", metavar="PATH",
+                        help="write all trajectories; format from the suffix: .nc (CF DSG), "
+                        ".csv (tidy table), .geojson (one LineString per member)")
+
+
+def _roles(args) -> tuple:
+    roles = ["temperature", "surface_pressure"]
+    roles += ["u", "v"] if args.wind == "actual" else ["geopotential"]
+    if args.mode == "3d":
+        roles += ["omega", "vertical_velocity"]
+    if "geopotential" not in roles:
+        roles.append("geopotential")
+    return tuple(roles)
+
+
+def run(args) -> int:
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.io.analysis import open_analysis
+    from parcelcast.trajectories.api import compute_trajectories
+    from parcelcast.trajectories.output import to_json_dict, write_trajectories
+    from parcelcast.units import Q_
+
+    ds = open_analysis(args.files, dict(args.var), roles=_roles(args))
+    hours = -args.back if args.back is not None else args.ahead
+    if ds.sizes.get("time", 1) == 1:
+        print("parcelcast track: note: one analysis time only; the flow is treated as steady.",
+              file=sys.stderr)
+    lat, lon = args.point
+    out = compute_trajectories(
+        ds, lat, lon, Q_(args.level, "hPa"), Q_(hours, "h"), args.start,
+        mode=args.mode, scheme=args.scheme, wind=args.wind, members=args.members,
+        output_interval=Q_(args.every, "h"), ground=args.ground,
+    )
+    if args.out:
+        write_trajectories(out, args.out)
+    summary = to_json_dict(out, DISCLAIMER)
+    if args.json:
+        print_json(summary)
+    else:
+        _print_text(summary, args.out)
+    return 0
+
+
+def _print_text(summary: dict, path) -> None:
+    a = summary["arrival"]
+    print(f"{a['direction']} {a['mode']} trajectories, {a['role']} {a['time']} at "
+          f"{a['lat']}, {a['lon']}, {a['pressure_hPa']} hPa ({a['scheme']}, {a['wind']} wind)")
+    central = summary["members"][0]
+    print(f"central path ({central['status']}):")
+    for p in central["points"]:
+        t = "" if p["temperature_K"] is None else f"  T {p['temperature_K']:.1f} K"
+        print(f"  {p['time']}  {p['lat']:8.3f} {p['lon']:9.3f}  {p['pressure_hPa']:7.1f} hPa{t}")
+    n = len(summary["members"])
+    if n > 1:
+        print(f"{n} members; spread at the end {summary['spread_km']} km "
+              f"({summary['spread_fraction']} of the distance travelled)")
+    if path:
+        print(f"written: {path}")
+    print(summary["disclaimer"])

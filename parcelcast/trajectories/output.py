@@ -1,0 +1,187 @@
+"""Writing trajectories: CF DSG NetCDF, tidy CSV, GeoJSON, and the JSON summary.
+
+What belongs here: turning the dataset of :func:`~parcelcast.trajectories.api.compute_trajectories`
+into files (atomically, via :func:`parcelcast.io.atomic.atomic_path`) and into the plain
+dictionary printed by ``parcelcast track --json``.
+
+* NetCDF: the dataset as it is (featureType ``trajectory``, CF 1.10 section H.4).
+* CSV: one row per valid point, columns ``trajectory, analysis_member, cloud_member,
+  start_group, status, obs, time, lat, lon, pressure_hPa`` and the sampled fields.
+* GeoJSON (RFC 7946): a FeatureCollection, one LineString per trajectory with its
+  properties (status, members, times of the first and last points); coordinates are
+  ``[lon, lat]`` in degrees, longitudes unwrapped along the path so a line crossing the
+  dateline does not jump (RFC 7946 section 3.1.9 allows this or splitting).
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+
+from parcelcast.io.atomic import atomic_path
+from parcelcast.trajectories.errors import TrajectoryError
+
+FORMATS = {".nc": "netcdf", ".csv": "csv", ".geojson": "geojson", ".json": "geojson"}
+
+
+def _iso(t) -> str | None:
+    import pandas as pd
+
+    if np.isnat(t):
+        return None
+    return pd.Timestamp(t).strftime("%Y-%m-%dT%H:%M:%SZ")
+
+
+def _num(x, digits=4):
+    x = float(x)
+    return round(x, digits) if np.isfinite(x) else None
+
+
+def write_trajectories(ds, path) -> Path:
+    """Write trajectories to ``path``; the format follows the suffix (.nc, .csv, .geojson).
+
+    Raises :class:`TrajectoryError` for an unknown suffix (listing the valid ones).
+    """
+    path = Path(path)
+    kind = FORMATS.get(path.suffix.lower())
+    if kind is None:
+        raise TrajectoryError(
+            f"cannot tell the output format from {path.name!r}; use one of: {', '.join(FORMATS)}")
+    with atomic_path(path) as tmp:
+        if kind == "netcdf":
+            enc = {name: {"zlib": True} for name in ds.data_vars if ds[name].dtype.kind == "f"}
+            enc["time"] = {"units": "seconds since 1970-01-01 00:00:00", "dtype": "float64"}
+            ds.to_netcdf(tmp, engine="netcdf4", encoding=enc)
+        elif kind == "csv":
+            to_frame(ds).to_csv(tmp, index=False, float_format="%.6g")
+        else:
+            tmp.write_text(json.dumps(to_geojson(ds), allow_nan=False), encoding="utf-8")
+    return path
+
+
+def to_frame(ds):
+    """Tidy table (pandas.DataFrame): one row per valid point."""
+    import pandas as pd
+
+    ntraj, nobs = ds.lat.shape
+    valid = ~np.isnan(ds.lat.values)
+    tr, ob = np.nonzero(valid)
+    cols = {
+        "trajectory": ds.trajectory_id.values[tr],
+        "analysis_member": ds.analysis_member.values[tr],
+        "cloud_member": ds.cloud_member.values[tr],
+        "start_group": ds.start_group.values[tr],
+        "status": ds.status_name.values[tr],
+        "obs": ob,
+        "time": pd.to_datetime(ds.time.values[tr, ob]).strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "lat": ds.lat.values[tr, ob],
+        "lon": ds.lon.values[tr, ob],
+        "pressure_hPa": ds.pressure.values[tr, ob] / 100.0,
+        "on_ground": ds.on_ground.values[tr, ob],
+    }
+    for name in ("temperature", "potential_temperature", "geopotential_height"):
+        if name in ds:
+            unit = ds[name].attrs.get("units", "")
+            cols[f"{name}_{unit}" if unit else name] = ds[name].values[tr, ob]
+    return pd.DataFrame(cols)
+
+
+def _unwrap(lon):
+    return np.rad2deg(np.unwrap(np.deg2rad(lon)))
+
+
+def to_geojson(ds) -> dict:
+    """GeoJSON FeatureCollection: one LineString per trajectory (RFC 7946)."""
+    feats = []
+    for k in range(ds.sizes["trajectory"]):
+        lat = ds.lat.values[k]
+        ok = ~np.isnan(lat)
+        lon = _unwrap(ds.lon.values[k][ok])
+        coords = [[_num(a, 5), _num(b, 5)] for a, b in zip(lon, lat[ok])]
+        if len(coords) == 1:
+            coords = coords * 2  # a LineString needs two positions
+        times = ds.time.values[k][ok]
+        feats.append({
+            "type": "Feature",
+            "geometry": {"type": "LineString", "coordinates": coords},
+            "properties": {
+                "trajectory": str(ds.trajectory_id.values[k]),
+                "status": str(ds.status_name.values[k]),
+                "analysis_member": int(ds.analysis_member.values[k]),
+                "cloud_member": int(ds.cloud_member.values[k]),
+                "central": bool(ds.central.values[k]),
+                "start_time": _iso(times[0]) if times.size else None,
+                "end_time": _iso(times[-1]) if times.size else None,
+                "pressure_hPa": [_num(p / 100.0, 2) for p in ds.pressure.values[k][ok]],
+                "times": [_iso(t) for t in times],
+                "direction": ds.attrs.get("direction"),
+                "mode": ds.attrs.get("mode"),
+            },
+        })
+    return {"type": "FeatureCollection", "features": feats}
+
+
+def to_json_dict(ds, disclaimer: str = "") -> dict:
+    """The ``--json`` summary of the first start group.
+
+    ``{"arrival": {...}, "members": [{"status", "points": [...]}, ...], "spread_km",
+    "spread_fraction", "disclaimer"}``.  Points are in ascending time (for a back
+    trajectory: from the origin to the arrival point); the unperturbed member comes first.
+    ``arrival`` describes the start point of the integration (the arrival point of a back
+    trajectory, the release point of a forward one) with ``"role"`` saying which.
+    """
+    grp = ds.start_group.values
+    sel = np.flatnonzero(grp == grp.min())
+    order = sel[np.argsort(-ds.central.values[sel], kind="stable")]
+    backward = ds.attrs.get("direction") == "backward"
+    members = []
+    for k in order:
+        ok = ~np.isnan(ds.lat.values[k])
+        idx = np.flatnonzero(ok)
+        if backward:
+            idx = idx[::-1]
+        pts = []
+        for o in idx:
+            pt = {
+                "time": _iso(ds.time.values[k, o]),
+                "lat": _num(ds.lat.values[k, o]),
+                "lon": _num(ds.lon.values[k, o]),
+                "pressure_hPa": _num(ds.pressure.values[k, o] / 100.0, 2),
+                "temperature_K": _num(ds.temperature.values[k, o], 2) if "temperature" in ds else None,
+            }
+            if "potential_temperature" in ds:
+                pt["potential_temperature_K"] = _num(ds.potential_temperature.values[k, o], 2)
+            if "geopotential_height" in ds:
+                pt["height_m"] = _num(ds.geopotential_height.values[k, o], 1)
+            pts.append(pt)
+        members.append({
+            "status": str(ds.status_name.values[k]),
+            "analysis_member": int(ds.analysis_member.values[k]),
+            "cloud_member": int(ds.cloud_member.values[k]),
+            "points": pts,
+        })
+    c = order[0]
+    sp = ds.spread.values[0]
+    fr = ds.spread_fraction.values[0]
+    last = np.flatnonzero(~np.isnan(sp))
+    return {
+        "arrival": {
+            "role": "arrival" if backward else "release",
+            "time": _iso(ds.time.values[c, 0]),
+            "lat": _num(ds.lat.values[c, 0]),
+            "lon": _num(ds.lon.values[c, 0]),
+            "pressure_hPa": _num(ds.pressure.values[c, 0] / 100.0, 2),
+            "direction": ds.attrs.get("direction"),
+            "mode": ds.attrs.get("mode"),
+            "scheme": ds.attrs.get("scheme"),
+            "wind": ds.attrs.get("wind"),
+            "steady_flow": bool(ds.attrs.get("steady_flow", 0)),
+            "time_step_s": _num(ds.attrs.get("time_step_s", np.nan), 1),
+        },
+        "members": members,
+        "spread_km": _num(sp[last[-1]] / 1000.0, 2) if last.size else None,
+        "spread_fraction": _num(fr[last[-1]], 4) if last.size else None,
+        "disclaimer": disclaimer,
+    }
