@@ -127,3 +127,49 @@ def advection(scalar, u, v, grid: LatLonGrid | None = None):
     result.attrs["wind"] = u.attrs.get("long_name", "wind")
     result.attrs["pole_rows"] = "NaN (eastward derivative undefined)" if grid.has_pole_rows else "none"
     return result
+
+
+def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
+    """Temperature, wind and temperature advection on one pressure level at one time.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        Canonical analysis (needs ``temperature`` and ``u``/``v`` for ``wind="actual"``,
+        ``temperature`` and ``geopotential`` for ``wind="geostrophic"``).
+    level_hpa : float
+        Pressure level in hPa.
+    time : numpy.datetime64, optional
+        Valid time (UTC); default the latest analysis time.
+    wind : {"actual", "geostrophic"}
+
+    Returns
+    -------
+    xarray.Dataset
+        ``temperature`` (K), ``u``/``v`` (m s-1), ``temperature_advection`` (K s-1,
+        positive = warm advection); member dimension kept if present.
+    """
+    import xarray as xr
+
+    from parcelcast.io.analysis import require
+    from parcelcast.selection import select_level, select_time
+
+    if wind not in ("actual", "geostrophic"):
+        raise ValueError(f"wind must be 'actual' or 'geostrophic', not {wind!r}")
+    needed = ("temperature", "u", "v") if wind == "actual" else ("temperature", "geopotential")
+    require(ds, *needed, purpose=f"temperature advection with the {wind} wind")
+    sliced = select_level(select_time(ds[list(needed)], time), level_hpa)
+    if wind == "actual":
+        u, v = sliced["u"], sliced["v"]
+    else:
+        from parcelcast.geostrophic import geostrophic_wind
+
+        u, v = geostrophic_wind(sliced)
+    adv = advection(sliced["temperature"], u, v)
+    adv.attrs["wind"] = wind
+    out = xr.Dataset({"temperature": sliced["temperature"], "u": u, "v": v,
+                      "temperature_advection": adv})
+    out.attrs = {k: ds.attrs[k] for k in ("source_files", "Conventions") if k in ds.attrs}
+    out.attrs["wind"] = wind
+    out.attrs["missing_points"] = int(adv.isnull().sum())
+    return out

@@ -74,6 +74,12 @@ def _message_length(data: bytes, offset: int) -> int:
     return 0
 
 
+def _load_proj_first() -> None:
+    """Import pyproj before eccodes: some eccodes wheels bundle their own PROJ, and the
+    library loaded second aborts the process (see DEVELOPERS.md, 'GRIB and PROJ')."""
+    import pyproj  # noqa: F401
+
+
 def scan_messages(path: Path) -> GribScan:
     """Walk the file message by message, decoding each with eccodes.
 
@@ -81,6 +87,7 @@ def scan_messages(path: Path) -> GribScan:
     ``7777`` end marker, or does not decode counts as failed; the walk then
     resumes at the next ``GRIB`` marker so later intact messages are still seen.
     """
+    _load_proj_first()
     import eccodes
 
     scan = GribScan()

@@ -1,0 +1,156 @@
+"""``parcelcast advect``: temperature advection on a pressure level (map, point, NetCDF)."""
+
+from __future__ import annotations
+
+import argparse
+
+from parcelcast.cli._common import (
+    add_input_arguments,
+    iso_utc,
+    json_number,
+    lat_lon,
+    print_json,
+    utc_time,
+)
+
+SECONDS_PER_HOUR = 3600.0
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    add_input_arguments(parser)
+    parser.add_argument("--level", type=float, required=True, metavar="HPA",
+                        help="pressure level in hPa, e.g. 850")
+    parser.add_argument("--time", type=utc_time, metavar="ISO",
+                        help="valid time (UTC unless a zone is given); default: the latest")
+    parser.add_argument("--at", type=lat_lon, metavar="LAT,LON",
+                        help="report values at this point (bilinear)")
+    parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
+                        help="advecting wind: the analysed wind or the geostrophic wind from "
+                        "geopotential (default: actual)")
+    parser.add_argument("--json", action="store_true", help="print JSON instead of text")
+    parser.add_argument("--out", metavar="PATH.nc", help="write the fields to CF NetCDF")
+    parser.add_argument("--map", metavar="PATH.png", help="draw a map to PNG")
+
+
+def run(args) -> int:
+    from parcelcast.advection import advection_on_level
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.io.analysis import open_analysis
+
+    roles = ("temperature", "u", "v") if args.wind == "actual" else ("temperature", "geopotential")
+    ds = open_analysis(args.files, dict(args.var), roles=roles)
+    fields = advection_on_level(ds, args.level, args.time, args.wind)
+    if args.at is not None:
+        summary = point_summary(fields, *args.at)
+    else:
+        summary = field_summary(fields)
+    summary["disclaimer"] = DISCLAIMER
+    if args.out:
+        write_fields(fields, args.out)
+    if args.map:
+        from parcelcast.render.maps import advection_map
+
+        advection_map(fields.mean("member") if "member" in fields.dims else fields,
+                      args.map, station=args.at)
+    if args.json:
+        print_json(summary)
+    else:
+        print_text(summary)
+    return 0
+
+
+def _base(fields) -> dict:
+    return {
+        "time": iso_utc(fields["time"].values),
+        "level_hPa": json_number(float(fields["level"].values) / 100.0, 3),
+        "wind": fields.attrs["wind"],
+        "source": fields.attrs.get("source_files", ""),
+    }
+
+
+def point_summary(fields, lat: float, lon: float) -> dict:
+    """The JSON contract at a point: values are the member mean when members exist."""
+    from parcelcast.sampling import value_at
+
+    at = value_at(fields, lat, lon)
+    adv = at["temperature_advection"] * SECONDS_PER_HOUR
+    has_members = "member" in at.dims
+    out = _base(fields)
+    out.update({
+        "lat": lat,
+        "lon": lon,
+        "temperature_K": json_number(at["temperature"].mean("member") if has_members else at["temperature"], 3),
+        "u_m_s": json_number(at["u"].mean("member") if has_members else at["u"], 3),
+        "v_m_s": json_number(at["v"].mean("member") if has_members else at["v"], 3),
+        "advection_K_per_h": json_number(adv.mean("member") if has_members else adv, 4),
+        "sign_convention": "advection = -V.grad T; positive = warm advection",
+        "missing_points_in_field": fields.attrs["missing_points"],
+    })
+    if has_members:
+        out["members"] = [
+            {"member": int(m), "advection_K_per_h": json_number(adv.sel(member=m), 4)}
+            for m in at["member"].values
+        ]
+        out["advection_spread_K_per_h"] = json_number(adv.std("member"), 4)
+    return out
+
+
+def field_summary(fields) -> dict:
+    """Whole-field statistics (K/h) and where the extremes are."""
+    import numpy as np
+
+    adv = fields["temperature_advection"] * SECONDS_PER_HOUR
+    if "member" in adv.dims:
+        adv = adv.mean("member")
+    out = _base(fields)
+    values = adv.values
+    finite = np.isfinite(values)
+    out["missing_points_in_field"] = int((~finite).sum())
+    if finite.any():
+        jmax, imax = np.unravel_index(np.nanargmax(values), values.shape)
+        jmin, imin = np.unravel_index(np.nanargmin(values), values.shape)
+        out.update({
+            "advection_max_K_per_h": json_number(values[jmax, imax], 4),
+            "max_at": [float(adv["lat"][jmax]), float(adv["lon"][imax])],
+            "advection_min_K_per_h": json_number(values[jmin, imin], 4),
+            "min_at": [float(adv["lat"][jmin]), float(adv["lon"][imin])],
+            "advection_mean_abs_K_per_h": json_number(np.nanmean(np.abs(values)), 4),
+        })
+    return out
+
+
+def write_fields(fields, path) -> None:
+    """Write the level's fields as CF NetCDF, atomically."""
+    from parcelcast.io.atomic import atomic_path
+
+    out = fields.copy()
+    out.attrs["Conventions"] = "CF-1.10"
+    out.attrs["title"] = "parcelcast temperature advection"
+    out.attrs["comment"] = "Guidance, not an official forecast."
+    with atomic_path(path) as tmp:
+        out.to_netcdf(tmp, engine="netcdf4")
+
+
+def print_text(summary: dict) -> None:
+    lines = [f"Temperature advection at {summary['level_hPa']:g} hPa, {summary['wind']} wind, "
+             f"valid {summary['time']}"]
+    if "lat" in summary:
+        lines += [
+            f"  point            {summary['lat']:.3f}, {summary['lon']:.3f}",
+            f"  temperature      {_fmt(summary['temperature_K'], 'K')}",
+            f"  wind u, v        {_fmt(summary['u_m_s'], 'm/s')}, {_fmt(summary['v_m_s'], 'm/s')}",
+            f"  advection        {_fmt(summary['advection_K_per_h'], 'K/h')}  (positive = warm)",
+        ]
+    else:
+        for key, label in (("advection_max_K_per_h", "strongest warm"),
+                           ("advection_min_K_per_h", "strongest cold"),
+                           ("advection_mean_abs_K_per_h", "mean |advection|")):
+            if key in summary:
+                lines.append(f"  {label:<17}{_fmt(summary[key], 'K/h')}")
+    lines.append(f"  missing points   {summary['missing_points_in_field']}")
+    lines.append(summary["disclaimer"])
+    print("\n".join(lines))
+
+
+def _fmt(value, unit: str) -> str:
+    return "missing" if value is None else f"{value:.3f} {unit}"

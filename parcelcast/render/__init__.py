@@ -1,0 +1,1 @@
+"""Drawing: maps and diagrams of what the library computed (no science here)."""

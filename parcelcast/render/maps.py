@@ -1,0 +1,90 @@
+"""Maps of gridded fields (matplotlib with the Agg backend, cartopy projection).
+
+Only draws; every number comes from the library.  No coastlines are drawn: the
+Natural Earth shapes would need a download, and the tool must work offline.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from parcelcast.io.atomic import atomic_path
+
+SECONDS_PER_HOUR = 3600.0
+
+
+def advection_map(level_fields, path=None, station=None, ax=None):
+    """Draw temperature advection (K/h, red = warm, blue = cold) with isotherms and wind.
+
+    Parameters
+    ----------
+    level_fields : xarray.Dataset
+        Output of :func:`parcelcast.advection.advection_on_level` (one time, one level,
+        no member dimension: pass the member mean or one member).
+    path : str or Path, optional
+        PNG file to write atomically.
+    station : (lat, lon), optional
+        Marked with its name "station".
+    ax : matplotlib Axes (cartopy GeoAxes), optional
+
+    Returns
+    -------
+    dict with the figure and the artists drawn.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import cartopy.crs as ccrs
+    import matplotlib.pyplot as plt
+
+    adv = level_fields["temperature_advection"] * SECONDS_PER_HOUR
+    lat, lon = adv["lat"].values, adv["lon"].values
+    values = adv.values
+    if ax is None:
+        fig = plt.figure(figsize=(10, 6.5))
+        ax = fig.add_subplot(1, 1, 1, projection=ccrs.PlateCarree(central_longitude=float(np.mean(lon))))
+    else:
+        fig = ax.figure
+    finite = np.abs(values[np.isfinite(values)])
+    limit = float(np.percentile(finite, 98)) if finite.size else 1.0
+    limit = _nice_ceiling(max(limit, 0.05))
+    levels = np.linspace(-limit, limit, 17)
+    filled = ax.contourf(lon, lat, values, levels=levels, cmap="RdBu_r", extend="both",
+                         transform=ccrs.PlateCarree())
+    isotherms = ax.contour(lon, lat, level_fields["temperature"].values - 273.15,
+                           levels=np.arange(-80, 50, 4), colors="0.25", linewidths=0.7,
+                           transform=ccrs.PlateCarree())
+    ax.clabel(isotherms, fmt="%d\u00b0C", fontsize=7)
+    step = max(1, int(round(max(len(lat), len(lon)) / 25)))
+    arrows = ax.quiver(lon[::step], lat[::step], level_fields["u"].values[::step, ::step],
+                       level_fields["v"].values[::step, ::step], transform=ccrs.PlateCarree(),
+                       color="0.15", width=0.0022, scale=900)
+    ax.quiverkey(arrows, 0.9, -0.08, 20, "20 m/s", labelpos="E")
+    ax.gridlines(draw_labels=True, linewidth=0.4, color="0.6", linestyle=":")
+    ax.set_extent([lon.min(), lon.max(), lat.min(), lat.max()], crs=ccrs.PlateCarree())
+    if station is not None:
+        ax.plot(station[1], station[0], marker="*", color="gold", markeredgecolor="black",
+                markersize=14, transform=ccrs.PlateCarree())
+    bar = fig.colorbar(filled, ax=ax, orientation="vertical", shrink=0.8, pad=0.08)
+    bar.set_label("temperature advection -V\u00b7\u2207T (K/h), positive = warm")
+    time = level_fields["time"].values if "time" in level_fields.coords else None
+    when = (np.datetime_as_string(time, unit="m").replace("T", " ") + " UTC") if time is not None else ""
+    level = float(level_fields["level"].values) / 100 if "level" in level_fields.coords else None
+    wind = level_fields.attrs.get("wind", "actual")
+    ax.set_title(f"Temperature advection at {level:g} hPa ({wind} wind), valid {when}\n"
+                 "contours: isotherms (\u00b0C); arrows: wind. Guidance only, not an official forecast.",
+                 fontsize=10)
+    if path is not None:
+        with atomic_path(path) as tmp:
+            fig.savefig(tmp, format="png", dpi=110, bbox_inches="tight")
+        plt.close(fig)
+    return {"figure": fig, "filled": filled, "isotherms": isotherms, "arrows": arrows}
+
+
+def _nice_ceiling(value: float) -> float:
+    """Smallest of 1, 2, 2.5, 5 x 10^n not below ``value`` (for readable colour bars)."""
+    exponent = np.floor(np.log10(value))
+    for mantissa in (1.0, 2.0, 2.5, 5.0, 10.0):
+        if mantissa * 10 ** exponent >= value:
+            return float(mantissa * 10 ** exponent)
+    return float(10 ** (exponent + 1))
