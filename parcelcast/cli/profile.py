@@ -1,0 +1,131 @@
+"""``parcelcast profile``: indices, thermal-wind advection and guidance of one profile.
+
+Two forms::
+
+    parcelcast profile SOUNDING.csv [--lat LAT --lon LON --time ISO] [--json] [--plot OUT.png]
+    parcelcast profile ANALYSIS... --at LAT,LON [--time ISO] [--var ROLE=NAME] [--json] [--plot OUT.png]
+"""
+
+from __future__ import annotations
+
+import argparse
+
+from parcelcast.cli import _common
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("files", nargs="+", metavar="FILE",
+                        help="a profile CSV file (header names quantity and unit, e.g. pressure_hPa, "
+                        "temperature_degC), or analysis files (NetCDF/GRIB) with --at")
+    parser.add_argument("--at", type=_common.lat_lon, metavar="LAT,LON",
+                        help="take the column of the analysis files at this point (degrees)")
+    parser.add_argument("--lat", type=float, help="latitude of a CSV profile (degrees north)")
+    parser.add_argument("--lon", type=float, help="longitude of a CSV profile (degrees east)")
+    parser.add_argument("--time", type=_common.utc_time, metavar="ISO",
+                        help="valid time (UTC unless a zone is given)")
+    parser.add_argument("--var", action="append", type=_common.variable_override, default=[],
+                        metavar="ROLE=NAME", help="name the analysis variable for a role; repeatable")
+    parser.add_argument("--advected-change", type=float, default=0.0, metavar="K",
+                        help="temperature change (K) expected from advection by the afternoon, "
+                        "added to the top-temperature guidance")
+    parser.add_argument("--json", action="store_true", help="print the results as JSON")
+    parser.add_argument("--plot", metavar="PATH.png", help="draw a skew-T log-p diagram to this file")
+
+
+def _clean(obj):
+    import numpy as np
+
+    if isinstance(obj, dict):
+        return {k: _clean(v) for k, v in obj.items() if not k.startswith("_")}
+    if isinstance(obj, (list, tuple)):
+        return [_clean(v) for v in obj]
+    if isinstance(obj, (float, np.floating, int, np.integer)) and not isinstance(obj, bool):
+        return _common.json_number(obj, 4)
+    return obj
+
+
+def build_report(profile, result, comparison=None) -> dict:
+    """The JSON document of the command (library values, renamed for people)."""
+    from parcelcast.cli import DISCLAIMER
+
+    doc = {
+        "source": profile.source,
+        "latitude": profile.latitude,
+        "longitude": profile.longitude,
+        "time": _common.iso_utc(profile.time) if profile.time is not None else None,
+        "levels": profile.nlev,
+    }
+    doc.update(result)
+    if comparison is not None:
+        doc["gridded_layers"] = comparison
+    doc["thermal_wind_assumptions"] = (
+        "geostrophic winds, uniform temperature gradient through each layer, f at the profile's "
+        "latitude; veering with height = warm advection (northern hemisphere)")
+    doc["notes"] = list(profile.notes)
+    doc["disclaimer"] = DISCLAIMER
+    return _clean(doc)
+
+
+def _text(doc) -> str:
+    def f(x, fmt="{:.0f}"):
+        return "--" if x is None else fmt.format(x)
+
+    lines = [f"Profile: {doc['source']}" + (f"  valid {doc['time']}" if doc.get("time") else "")]
+    lines.append(f"  LCL {f(doc['lcl_hPa'])} hPa, {f(doc['lcl_temperature_K'], '{:.1f}')} K")
+    for kind in ("surface", "mixed_layer", "most_unstable"):
+        lines.append(f"  {kind:14s} CAPE {f(doc['cape_J_per_kg'][kind]):>6} J/kg  CIN "
+                     f"{f(doc['cin_J_per_kg'][kind]):>6} J/kg  LFC {f(doc['lfc_hPa'][kind]):>5} hPa  "
+                     f"EL {f(doc['el_hPa'][kind]):>5} hPa")
+    lines.append(f"  lifted index {f(doc['lifted_index_K'], '{:.1f}')} K, Showalter "
+                 f"{f(doc['showalter_index_K'], '{:.1f}')} K, K index {f(doc['k_index_K'], '{:.0f}')}, "
+                 f"Total Totals {f(doc['total_totals_K'], '{:.0f}')}")
+    lines.append(f"  precipitable water {f(doc['precipitable_water_mm'], '{:.1f}')} mm, freezing level "
+                 f"{f(doc['freezing_level_m'])} m, wet-bulb zero {f(doc['wet_bulb_zero_m'])} m")
+    g = doc["top_temperature_guidance"]
+    lines.append(f"  top-temperature guidance {f(g['temperature_K'] and g['temperature_K'] - 273.15, '{:.1f}')} "
+                 f"degC (mixing from {f(g['mixing_top_hPa'])} hPa)")
+    if doc["layers"]:
+        lines.append("  thermal-wind advection by layer (K/h, + warm):")
+        for lay in doc["layers"]:
+            lines.append(f"    {lay['bottom_hPa']:.0f}-{lay['top_hPa']:.0f} hPa  "
+                         f"{f(lay['advection_K_per_h'], '{:+.2f}')}")
+    for n in doc["notes"]:
+        lines.append(f"  note: {n}")
+    lines.append(doc["disclaimer"])
+    return "\n".join(lines)
+
+
+def run(args) -> int:
+    from pathlib import Path
+
+    from parcelcast.errors import ParcelcastError
+    from parcelcast.profiles import analyse, column_from_analysis, gridded_layer_advection, read_profile_csv
+
+    comparison = None
+    if args.at is None:
+        if len(args.files) != 1 or Path(args.files[0]).suffix.lower() not in (".csv", ".txt"):
+            raise ParcelcastError(
+                "give one profile CSV file, or analysis files with --at LAT,LON "
+                f"(got {', '.join(args.files)})")
+        profile = read_profile_csv(args.files[0], args.lat, args.lon, args.time)
+        result = analyse(profile, advective_change=args.advected_change)
+    else:
+        from parcelcast.io.analysis import open_analysis
+
+        lat, lon = args.at
+        ds = open_analysis(args.files, dict(args.var))
+        profile = column_from_analysis(ds, lat, lon, args.time)
+        result = analyse(profile, advective_change=args.advected_change)
+        if {"temperature", "u", "v"} <= set(ds.data_vars):
+            comparison = gridded_layer_advection(
+                ds, lat, lon, [(x["bottom_hPa"], x["top_hPa"]) for x in result["layers"]], args.time)
+    doc = build_report(profile, result, comparison)
+    if args.plot:
+        from parcelcast.render.skewt import save_profile_diagram
+
+        save_profile_diagram(profile, result, args.plot)
+    if args.json:
+        _common.print_json(doc)
+    else:
+        print(_text(doc))
+    return 0

@@ -1,0 +1,252 @@
+"""A skew-T log-p diagram of a profile, with a side panel of thermal-wind advection.
+
+Our own layout: the main panel has temperature against ln p with isotherms skewed
+by ``SKEW`` kelvin per unit of ln(1000 hPa / p); thin guide lines for dry adiabats,
+pseudo-adiabats and saturation mixing ratio; the temperature, dew point and lifted
+parcel; the parcel's positive area (buoyant) and negative area (below its LFC)
+shaded; wind arrows (pointing downwind, length proportional to speed) in a narrow
+strip; and a side panel of horizontal bars of the thermal-wind layer advection.
+
+Functions take an ``ax`` (or make one) and return what they drew.  Only what the
+library computed is drawn; no science here.  Matplotlib is imported inside the
+functions that need it (Agg backend when saving).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+__all__ = [
+    "SKEW",
+    "COLOURS",
+    "skewed_x",
+    "draw_guides",
+    "draw_sounding",
+    "draw_parcel",
+    "draw_winds",
+    "draw_layer_advection",
+    "profile_diagram",
+    "save_profile_diagram",
+]
+
+#: kelvin of skew per unit of ln(1000 hPa / p)
+SKEW = 35.0
+#: the palette of this diagram (our own choice)
+COLOURS = {
+    "temperature": "#b5403a",
+    "dewpoint": "#2e8b7a",
+    "parcel": "#3b3561",
+    "positive": "#f2b134",
+    "negative": "#7bb0d6",
+    "isotherm": "#dedede",
+    "zero": "#8aa9c9",
+    "dry_adiabat": "#e3cfae",
+    "moist_adiabat": "#b8d4c8",
+    "mixing_ratio": "#d3c4e6",
+    "warm": "#d9593d",
+    "cold": "#3f6fa8",
+    "wind": "#4a4a4a",
+}
+P_BOTTOM, P_TOP = 1050.0, 100.0  # hPa
+T_LEFT, T_RIGHT = -40.0, 45.0  # degC at 1000 hPa
+
+
+def skewed_x(temperature_c, pressure_hpa):
+    """Horizontal position of (T degC, p hPa) on the diagram."""
+    return np.asarray(temperature_c, dtype=np.float64) + SKEW * np.log(1000.0 / np.asarray(pressure_hpa, dtype=np.float64))
+
+
+def _new_ax(ax):
+    if ax is None:
+        import matplotlib.pyplot as plt
+
+        _, ax = plt.subplots()
+    return ax
+
+
+def _frame(ax, p_bottom=P_BOTTOM, p_top=P_TOP):
+    ax.set_yscale("log")
+    ax.set_ylim(p_bottom, p_top)
+    ax.set_xlim(T_LEFT, T_RIGHT)
+    ticks = [1000, 850, 700, 500, 400, 300, 250, 200, 150, 100]
+    ticks = [t for t in ticks if p_top <= t <= p_bottom]
+    from matplotlib import ticker
+
+    ax.yaxis.set_major_locator(ticker.FixedLocator(ticks))
+    ax.yaxis.set_major_formatter(ticker.FuncFormatter(lambda v, _: f"{v:.0f}"))
+    ax.yaxis.set_minor_locator(ticker.NullLocator())
+    ax.set_ylabel("pressure (hPa)")
+    ax.set_xlabel("temperature (degC), isotherms slanted")
+
+
+def draw_guides(ax=None, p_bottom=P_BOTTOM, p_top=P_TOP):
+    """Isotherms, dry adiabats, pseudo-adiabats and mixing-ratio lines. Returns the lines drawn."""
+    from parcelcast.thermo import dewpoint_from_vapour_pressure, pseudoadiabat, vapour_pressure_from_mixing_ratio
+
+    ax = _new_ax(ax)
+    _frame(ax, p_bottom, p_top)
+    p = np.geomspace(p_bottom, p_top, 60)
+    drawn = []
+    for t in range(-120, 60, 10):
+        c = COLOURS["zero"] if t == 0 else COLOURS["isotherm"]
+        drawn += ax.plot(skewed_x(np.full(p.shape, t), p), p, color=c, lw=0.8 if t else 1.2, zorder=1)
+    for th in range(250, 471, 10):
+        tk = th * (p / 1000.0) ** 0.2857
+        drawn += ax.plot(skewed_x(tk - 273.15, p), p, color=COLOURS["dry_adiabat"], lw=0.7, zorder=1)
+    starts = np.arange(-10.0, 36.0, 5.0) + 273.15
+    pm = np.geomspace(1000.0, max(p_top, 200.0), 40)
+    moist = pseudoadiabat(starts, np.full(starts.shape, 100000.0), pm * 100.0)
+    for row in moist:
+        drawn += ax.plot(skewed_x(row - 273.15, pm), pm, color=COLOURS["moist_adiabat"], lw=0.7,
+                         ls=(0, (5, 3)), zorder=1)
+    pw = np.geomspace(p_bottom, 500.0, 20)
+    for w in (1.0, 2.0, 4.0, 8.0, 12.0, 16.0, 20.0):
+        td = dewpoint_from_vapour_pressure(vapour_pressure_from_mixing_ratio(w / 1000.0, pw * 100.0))
+        drawn += ax.plot(skewed_x(td - 273.15, pw), pw, color=COLOURS["mixing_ratio"], lw=0.7,
+                         ls=(0, (1, 2)), zorder=1)
+        ax.text(skewed_x(td[-1] - 273.15, 500.0), 500.0, f"{w:g}", fontsize=6,
+                color=COLOURS["mixing_ratio"], ha="center", va="bottom")
+    return drawn
+
+
+def draw_sounding(profile, ax=None):
+    """Temperature and dew point of a profile; returns ``{"temperature": line, "dewpoint": line}``."""
+    ax = _new_ax(ax)
+    ph = profile.pressure / 100.0
+    (lt,) = ax.plot(skewed_x(profile.temperature - 273.15, ph), ph, color=COLOURS["temperature"], lw=2.2,
+                    label="temperature", zorder=4)
+    (ld,) = ax.plot(skewed_x(profile.dewpoint - 273.15, ph), ph, color=COLOURS["dewpoint"], lw=2.2,
+                    label="dew point", zorder=4)
+    return {"temperature": lt, "dewpoint": ld}
+
+
+def draw_parcel(profile, parcel, ax=None, label="surface parcel"):
+    """The lifted parcel (a :class:`parcelcast.thermo.ParcelResult` of this profile) and its areas.
+
+    Positive area: parcel warmer than the environment from its origin to the EL;
+    negative area: colder, below the LFC.  Returns ``{"parcel", "positive", "negative"}``.
+    """
+    ax = _new_ax(ax)
+    ph = profile.pressure / 100.0
+    tp = np.asarray(parcel.parcel_temperature, dtype=np.float64)
+    te = profile.temperature
+    ok = np.isfinite(tp) & np.isfinite(te)
+    (line,) = ax.plot(skewed_x(tp[ok] - 273.15, ph[ok]), ph[ok], color=COLOURS["parcel"], lw=1.6,
+                      ls=(0, (6, 2)), label=label, zorder=5)
+    xe, xp = skewed_x(te - 273.15, ph), skewed_x(tp - 273.15, ph)
+    el = float(parcel.el_pressure) / 100.0 if np.isfinite(parcel.el_pressure) else np.nan
+    lfc = float(parcel.lfc_pressure) / 100.0 if np.isfinite(parcel.lfc_pressure) else np.nan
+    upper = ok & ((ph >= el) if np.isfinite(el) else False)
+    pos = ax.fill_betweenx(ph, xe, xp, where=upper & (tp >= te), interpolate=True,
+                           color=COLOURS["positive"], alpha=0.45, lw=0, label="positive area", zorder=2)
+    lower = ok & ((ph >= lfc) if np.isfinite(lfc) else np.ones_like(ok))
+    neg = ax.fill_betweenx(ph, xe, xp, where=lower & (tp < te), interpolate=True,
+                           color=COLOURS["negative"], alpha=0.45, lw=0, label="negative area", zorder=2)
+    marks = []
+    for name, value in (("LCL", parcel.lcl_pressure), ("LFC", parcel.lfc_pressure), ("EL", parcel.el_pressure)):
+        if np.isfinite(value):
+            pv = float(value) / 100.0
+            xv = float(np.interp(-np.log(pv), -np.log(ph[ok]), xp[ok])) if ok.sum() > 1 else np.nan
+            marks += ax.plot([xv + 1.0, xv + 4.0], [pv, pv], color=COLOURS["parcel"], lw=1.0, zorder=6)
+            marks.append(ax.text(xv + 4.5, pv, name, fontsize=7, va="center", color=COLOURS["parcel"]))
+    return {"parcel": line, "positive": pos, "negative": neg, "levels": marks}
+
+
+def draw_winds(profile, ax=None, max_arrows=20):
+    """Wind arrows (downwind, length ~ speed) against pressure, in an axes of their own.
+
+    Returns the quiver and the speed labels.
+    """
+    ax = _new_ax(ax)
+    ph = profile.pressure / 100.0
+    ok = np.isfinite(profile.u) & np.isfinite(profile.v) & (ph >= P_TOP)
+    idx = np.flatnonzero(ok)
+    if idx.size > max_arrows:
+        idx = idx[np.linspace(0, idx.size - 1, max_arrows).round().astype(int)]
+    ax.set_yscale("log")
+    ax.set_ylim(P_BOTTOM, P_TOP)
+    ax.set_xlim(-1, 1)
+    ax.set_xticks([])
+    ax.tick_params(labelleft=False, left=False)
+    ax.set_title("wind", fontsize=8)
+    u, v = profile.u[idx], profile.v[idx]
+    q = ax.quiver(np.zeros(idx.size), ph[idx], u, v, color=COLOURS["wind"], scale=90.0, width=0.035,
+                  pivot="middle", zorder=3)
+    labels = [ax.text(0.55, p, f"{s * 1.943844:.0f}", fontsize=6, va="center", color=COLOURS["wind"])
+              for p, s in zip(ph[idx], np.hypot(u, v))]
+    ax.text(0.5, 0.005, "kt", transform=ax.transAxes, fontsize=6, ha="center", va="bottom")
+    return {"quiver": q, "labels": labels}
+
+
+def draw_layer_advection(layers, ax=None):
+    """Horizontal bars of layer advection (K/h) spanning each layer's pressures; returns the bars."""
+    ax = _new_ax(ax)
+    ax.set_yscale("log")
+    ax.set_ylim(P_BOTTOM, P_TOP)
+    ax.tick_params(labelleft=False, left=False)
+    bars = []
+    vals = [lay["advection_K_per_h"] for lay in layers]
+    finite = [abs(v) for v in vals if v is not None and np.isfinite(v)]
+    lim = max(finite + [0.2]) * 1.25
+    for lay, val in zip(layers, vals):
+        if val is None or not np.isfinite(val):
+            continue
+        bottom, top = lay["bottom_hPa"], lay["top_hPa"]
+        colour = COLOURS["warm"] if val >= 0 else COLOURS["cold"]
+        bars.append(ax.fill_betweenx([bottom, top], 0, val, color=colour, alpha=0.8, lw=0))
+        ax.text(val, np.sqrt(bottom * top), f"{val:+.2f}", fontsize=7, va="center",
+                ha="left" if val >= 0 else "right")
+    ax.axvline(0, color="#777777", lw=0.8)
+    ax.set_xlim(-lim, lim)
+    ax.set_xlabel("K/h", fontsize=8)
+    ax.set_title("thermal-wind\nadvection\n(+ warm)", fontsize=8)
+    return bars
+
+
+def profile_diagram(profile, result, fig=None, parcel="surface"):
+    """The whole diagram; returns ``(fig, {"main", "wind", "advection"} axes, artists)``."""
+    import matplotlib.pyplot as plt
+
+    if fig is None:
+        fig = plt.figure(figsize=(9.0, 7.5))
+    gs = fig.add_gridspec(1, 3, width_ratios=[6.0, 0.8, 1.6], wspace=0.05)
+    main = fig.add_subplot(gs[0])
+    wind = fig.add_subplot(gs[1], sharey=main)
+    adv = fig.add_subplot(gs[2], sharey=main)
+    artists = {"guides": draw_guides(main)}
+    artists.update(draw_sounding(profile, main))
+    parcels = result.get("_parcels", {})
+    if parcel in parcels:
+        artists.update(draw_parcel(profile, parcels[parcel], main, label=f"{parcel.replace('_', ' ')} parcel"))
+    artists["winds"] = draw_winds(profile, wind)
+    artists["advection"] = draw_layer_advection(result.get("layers", []), adv)
+    main.legend(loc="lower left", fontsize=7, framealpha=0.9)
+    from matplotlib import ticker
+
+    main.yaxis.set_major_locator(ticker.FixedLocator([1000, 850, 700, 500, 400, 300, 250, 200, 150, 100]))
+    main.yaxis.set_major_formatter(ticker.FuncFormatter(lambda v, _: f"{v:.0f}"))
+    main.yaxis.set_minor_locator(ticker.NullLocator())
+    cape = result.get("cape_J_per_kg", {}).get(parcel, np.nan)
+    cin = result.get("cin_J_per_kg", {}).get(parcel, np.nan)
+    when = f"  {str(profile.time)[:16]} UTC" if profile.time is not None else ""
+    main.set_title(f"{profile.source}{when}\nCAPE {cape:.0f} J/kg, CIN {cin:.0f} J/kg ({parcel.replace('_', ' ')})",
+                   fontsize=8, loc="left")
+    fig.text(0.01, 0.005, "Guidance, not an official forecast: defer to the national weather service.",
+             fontsize=6, color="#555555")
+    return fig, {"main": main, "wind": wind, "advection": adv}, artists
+
+
+def save_profile_diagram(profile, result, path, dpi=110):
+    """Draw :func:`profile_diagram` and write it to ``path`` (PNG) atomically, Agg backend."""
+    import matplotlib
+
+    matplotlib.use("Agg", force=False)
+    from matplotlib.figure import Figure
+
+    from parcelcast.io.atomic import atomic_path
+
+    fig = Figure(figsize=(9.0, 7.5))
+    profile_diagram(profile, result, fig=fig)
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, format="png", dpi=dpi)
+    return path
