@@ -95,8 +95,10 @@ class FieldSource:
             data["_vmax"] = vmax
             if "omega" in data and self.geometry.levels is not None:
                 levels = self.geometry.levels
-                om = np.nanmax(np.abs(data["omega"]), axis=(0, 2, 3)) / levels
-                data["_omega_rate"] = float(np.nanmax(om)) if om.size else 0.0
+                om = np.abs(data["omega"])
+                finite = np.isfinite(om)
+                om = np.where(finite, om, 0.0).max(axis=(0, 2, 3)) / levels  # NaN levels: no limit
+                data["_omega_rate"] = float(om.max()) if om.size else 0.0
             self._cache[ti] = data
         return self._cache[ti]
 
