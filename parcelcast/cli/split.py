@@ -1,0 +1,107 @@
+"""``parcelcast split``: how much of a temperature change came in on the wind, and how much was made here."""
+
+from __future__ import annotations
+
+import argparse
+
+from parcelcast.cli._common import add_input_arguments, iso_utc, json_number, lat_lon, print_json, utc_time
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    add_input_arguments(parser)
+    parser.add_argument("--at", type=lat_lon, required=True, metavar="LAT,LON", help="the station")
+    parser.add_argument("--level", type=float, required=True, metavar="HPA", help="pressure level (hPa)")
+    parser.add_argument("--start", type=utc_time, required=True, metavar="ISO",
+                        help="start of the window (UTC unless a zone is given)")
+    parser.add_argument("--end", type=utc_time, required=True, metavar="ISO", help="end of the window")
+    parser.add_argument("--obs", metavar="STATION.csv",
+                        help="station series for the observed change (time + temperature_K/degC/degF)")
+    parser.add_argument("--radius-km", type=float, metavar="R",
+                        help="use the mean over this radius around the station instead of the point")
+    parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
+                        help="advecting wind (default: actual)")
+    parser.add_argument("--members", type=int, default=5,
+                        help="trajectories in the cloud of starts for the Lagrangian spread (default 5)")
+    parser.add_argument("--json", action="store_true", help="print JSON")
+
+
+def run(args) -> int:
+    from parcelcast.budget import trend_split
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.io.analysis import open_analysis
+
+    roles = ["temperature", "omega"] + (["u", "v"] if args.wind == "actual" else ["geopotential"])
+    ds = open_analysis(args.files, dict(args.var), roles=roles)
+    station = None
+    if args.obs:
+        from parcelcast.io.station import read_station_series
+
+        station = read_station_series(args.obs)
+    result = trend_split(ds, *args.at, args.level, args.start, args.end, args.wind,
+                         args.radius_km, station, args.members)
+    summary = to_json(result, args)
+    summary["disclaimer"] = DISCLAIMER
+    if args.json:
+        print_json(summary)
+    else:
+        print_text(summary)
+    return 0
+
+
+def to_json(result: dict, args) -> dict:
+    euler, lagr = result["eulerian"], result["lagrangian"]
+    out = {
+        "start": iso_utc(args.start),
+        "end": iso_utc(args.end),
+        "lat": args.at[0],
+        "lon": args.at[1],
+        "level_hPa": args.level,
+        "wind": args.wind,
+        "observed_change_K": json_number(euler["observed_change_K"], 4),
+        "advective_K": json_number(euler["advective_K"], 4),
+        "vertical_K": json_number(euler["vertical_K"], 4) if euler["vertical_available"] else None,
+        "residual_K": json_number(euler["residual_K"], 4),
+        "observed_source": euler["observed_source"],
+        "lagrangian": {
+            "non_advective_K": json_number(lagr["non_advective_K"], 4),
+            "advective_K": json_number(lagr["advective_K"], 4),
+            "spread_K": json_number(lagr["spread_K"], 4),
+            "trajectories": lagr["trajectories"],
+            "reached_start": lagr["reached_start"],
+            "statuses": lagr["statuses"],
+            "origin": {"lat": json_number(lagr["origin_lat"], 3), "lon": json_number(lagr["origin_lon"], 3)},
+        },
+        "advective_difference_K": json_number(result["advective_difference_K"], 4),
+        "notes": [
+            "advective = time integral of -V.grad T (trapezoid over analysis times)",
+            "vertical = time integral of omega * static stability"
+            + ("" if euler["vertical_available"] else ": not available (no omega in the input)"),
+            "residual = observed - advective - vertical: diabatic heating and errors",
+        ],
+    }
+    for key in ("observed_change_members_K", "advective_members_K", "residual_members_K"):
+        if key in euler:
+            out[key] = [json_number(x, 4) for x in euler[key]]
+    if "station_gaps" in euler:
+        out["station_gaps"] = euler["station_gaps"]
+    if "area" in euler:
+        out["area"] = euler["area"]
+    return out
+
+
+def print_text(s: dict) -> None:
+    def f(x):
+        return "n/a" if x is None else f"{x:+.2f} K"
+
+    lines = [
+        f"Trend split at {s['lat']:.2f},{s['lon']:.2f}, {s['level_hPa']:g} hPa, {s['start']} to {s['end']}",
+        f"  observed change        {f(s['observed_change_K'])}   ({s['observed_source']})",
+        f"  advective (Eulerian)   {f(s['advective_K'])}",
+        f"  vertical motion        {f(s['vertical_K'])}",
+        f"  residual (diabatic)    {f(s['residual_K'])}",
+        f"  Lagrangian: non-advective {f(s['lagrangian']['non_advective_K'])}, advective "
+        f"{f(s['lagrangian']['advective_K'])}, spread {f(s['lagrangian']['spread_K'])}",
+        f"  Eulerian minus Lagrangian advective part: {f(s['advective_difference_K'])}",
+        s["disclaimer"],
+    ]
+    print("\n".join(lines))
