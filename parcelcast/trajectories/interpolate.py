@@ -176,6 +176,10 @@ class GridGeometry:
             # row means of the nearest row stand for the pole (only when the input lacks it)
             a = np.concatenate(parts, axis=-2)
         else:
+            rows = [np.mean(a[..., j, :], axis=-1, keepdims=True) for j in (0, -1)]
+            if all(np.array_equal(np.broadcast_to(r, a[..., j, :].shape), a[..., j, :], equal_nan=True)
+                   for r, j in zip(rows, (0, -1))):
+                return np.ascontiguousarray(a)  # pole rows already uniform: no copy
             a = np.array(a, dtype=np.float64, copy=True)
         for j in (0, -1):
             a[..., j, :] = np.mean(a[..., j, :], axis=-1, keepdims=True)
@@ -212,6 +216,11 @@ class GridGeometry:
             u = np.concatenate(rows_u, axis=-2)
             v = np.concatenate(rows_v, axis=-2)
         else:
+            new = [pole_row(u[..., j, :], v[..., j, :], self.lat[j]) for j in (0, -1)]
+            if all(np.allclose(pu, u[..., j, :], rtol=0, atol=1e-9, equal_nan=True)
+                   and np.allclose(pv, v[..., j, :], rtol=0, atol=1e-9, equal_nan=True)
+                   for (pu, pv), j in zip(new, (0, -1))):
+                return np.ascontiguousarray(u), np.ascontiguousarray(v)  # already one vector
             u, v = u.copy(), v.copy()
         for j in (0, -1):
             pu, pv = pole_row(u[..., j, :], v[..., j, :], self.lat[j])
@@ -251,21 +260,21 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
     n = lat.shape[0]
     ny, nx = geom.lat.size, geom.lon.size
     glat, glon = geom.lat, geom.lon
-    j = np.clip(np.searchsorted(glat, lat, side="right") - 1, 0, ny - 2)
+    j = _index(geom, "lat", glat, lat, 0.0, ny - 2)
     wy = (lat - glat[j]) / (glat[j + 1] - glat[j])
     rel = np.mod(lon - glon[0], 360.0)
     if geom.periodic_lon:
         ext = geom._cache.get("lonext")
         if ext is None:
             ext = geom._cache["lonext"] = np.append(glon - glon[0], 360.0)
-        i0 = np.clip(np.searchsorted(ext, rel, side="right") - 1, 0, nx - 1)
+        i0 = _index(geom, "lonp", ext[:-1], rel, glon[0] * 0.0, nx - 1)
         wx = (rel - ext[i0]) / (ext[i0 + 1] - ext[i0])
         i1 = i0 + 1
         i1[i1 == nx] = 0
         outside = np.zeros(n, dtype=bool)
     else:
         ext = glon - glon[0]
-        i0 = np.clip(np.searchsorted(ext, rel, side="right") - 1, 0, nx - 2)
+        i0 = _index(geom, "lonr", ext, rel, 0.0, nx - 2)
         wx = (rel - ext[i0]) / (ext[i0 + 1] - ext[i0])
         i1 = i0 + 1
         outside = (rel > ext[-1]) | (lat < glat[0]) | (lat > glat[-1])
@@ -286,7 +295,9 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
         qlev = geom._cache.get("qlev")
         if qlev is None:
             qlev = geom._cache["qlev"] = -np.log(geom.levels)
-        k0 = np.clip(np.searchsorted(qlev, q, side="right") - 1, 0, nl - 2)
+        # few levels: counting the interior levels at or under q beats a binary search
+        k0 = (q[:, None] >= qlev[None, 1:-1]).sum(axis=1) if nl <= 32 else np.clip(
+            np.searchsorted(qlev, q, side="right") - 1, 0, nl - 2)
         wk = np.clip((q - qlev[k0]) / (qlev[k0 + 1] - qlev[k0]), 0.0, 1.0)
         k1 = k0 + 1
         below = pressure > geom.levels[0]
@@ -297,6 +308,27 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
         below = above = np.zeros(n, dtype=bool)
     m = np.zeros(n, dtype=np.intp) if member is None else np.asarray(member, dtype=np.intp)
     return Location(hidx, wh, k0, k1, wk, m, trig, outside, below, above)
+
+
+def _index(geom, key, coord, values, _unused, hi):
+    """Index of the grid interval holding each value, clipped to [0, hi].
+
+    Uniform coordinates (spacing equal within 1e-9 degree) use arithmetic; others a
+    binary search.  ``coord`` is ascending.
+    """
+    spacing = geom._cache.get(("uniform", key))
+    if spacing is None:
+        d = np.diff(coord)
+        spacing = float(d[0]) if d.size and np.allclose(d, d[0], rtol=0, atol=1e-9) else 0.0
+        geom._cache[("uniform", key)] = spacing
+    if spacing > 0:
+        idx = np.floor((values - coord[0]) / spacing).astype(np.intp)
+        # guard against rounding at interval edges
+        np.clip(idx, 0, hi, out=idx)
+        idx -= (coord.take(idx) > values) & (idx > 0)
+        idx += (idx < hi) & (coord.take(np.minimum(idx + 1, coord.size - 1)) <= values)
+        return idx
+    return np.clip(np.searchsorted(coord, values, side="right") - 1, 0, hi)
 
 
 def _corner_values(loc: Location, arr: np.ndarray) -> list:
