@@ -13,7 +13,7 @@ Three formulations, chosen by ``method``:
     The more exact option, fitted to IAPWS-95: the saturation-pressure equation of
     Wagner and Pruss (2002, eq. 2.5) over water (273.16 K to 647.096 K; used by
     extrapolation below the triple point, for supercooled water, where it stays
-    within about 0.1-0.2 % of Murphy and Koop 2005 down to -40 degC) and the
+    within 0.05 % of Murphy and Koop 2005 down to -15 degC and 0.4 % at -35 degC) and the
     sublimation-pressure equation of Wagner et al. (2011) over ice (50 K to 273.16 K).
 
 All functions take temperature in K (any shape) and return Pa; NaN stays NaN.
