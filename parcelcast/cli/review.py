@@ -1,0 +1,50 @@
+"""``parcelcast review``: a case review (timeline, trajectories, split maps) from a case TOML."""
+
+from __future__ import annotations
+
+import argparse
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("case", metavar="CASE.toml", help="case file (see parcelcast/review.py)")
+    parser.add_argument("--out", metavar="DIR", help="output folder (default: review-<case name>)")
+
+
+def run(args) -> int:
+    import csv
+    import io
+    import json
+    from pathlib import Path
+
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.io.atomic import atomic_path, write_text
+    from parcelcast.render.review_figures import split_maps_figure, timeline_figure, trajectories_figure
+    from parcelcast.report import html_page, markdown
+    from parcelcast.review import build_review, read_case
+
+    case = read_case(args.case)
+    review = build_review(case)
+    out = Path(args.out or f"review-{case.source.parent.name}")
+    out.mkdir(parents=True, exist_ok=True)
+    timeline_figure(review, out / "timeline.png")
+    split_maps_figure(review, out / "split-maps.png")
+    trajectories_figure(review, out / "trajectories.png")
+    buffer = io.StringIO()
+    writer = csv.writer(buffer)
+    writer.writerow(["time_utc", "observed_change_K", "advective_K", "vertical_K", "residual_K"])
+    for row in review["timeline"]:
+        writer.writerow([str(row["time"])[:19] + "Z"] + [
+            "" if row[k] is None else f"{row[k]:.4f}"
+            for k in ("observed_change_K", "advective_K", "vertical_K", "residual_K")])
+    write_text(out / "timeline.csv", buffer.getvalue())
+    with atomic_path(out / "split-fields.nc") as tmp:
+        review["fields"].to_netcdf(tmp, engine="netcdf4")
+    summary = {key: value for key, value in review["eulerian"].items()}
+    summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
+    summary["disclaimer"] = DISCLAIMER
+    write_text(out / "review.json", json.dumps(summary, indent=2, default=str) + "\n")
+    write_text(out / "report.md", markdown(review))
+    write_text(out / "report.html", html_page(review))
+    print(f"case review written to {out}/ (report.md, report.html, figures, timeline.csv)")
+    print(DISCLAIMER)
+    return 0

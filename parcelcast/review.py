@@ -1,0 +1,126 @@
+"""Case reviews: an event window at a station, from a case file (TOML).
+
+A case file names the analyses, the station, the level and the window::
+
+    [case]
+    title = "..."
+    analyses = ["${PARCELCAST_DATA}/file.grb"]   # relative to this file; globs allowed
+    data_dir = "../../../shared/data"           # used for ${PARCELCAST_DATA} when unset
+    wind = "geostrophic"                        # or "actual"
+    members = 5
+
+    [station]
+    name = "..."
+    lat = 52.0
+    lon = 10.0
+
+    [window]
+    start = 2017-01-01T00:00:00Z
+    end = 2017-01-02T12:00:00Z
+    level_hPa = 850
+
+:func:`build_review` computes the timeline of the split (observed change, advective,
+vertical and residual parts accumulated from the start to each analysis time), the
+split maps for the whole window, and back trajectories arriving at key times.
+"""
+
+from __future__ import annotations
+
+import os
+import tomllib
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from parcelcast.errors import InputFileError, ParcelcastError
+
+
+@dataclass
+class Case:
+    title: str
+    analyses: list[str]
+    station_name: str
+    lat: float
+    lon: float
+    start: np.datetime64
+    end: np.datetime64
+    level_hpa: float
+    wind: str
+    members: int
+    source: Path
+
+
+def read_case(path) -> Case:
+    """Read and check a case TOML file; errors name the file and the key."""
+    path = Path(path)
+    if not path.is_file():
+        raise InputFileError(path, "no such case file")
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except tomllib.TOMLDecodeError as exc:
+        raise InputFileError(path, f"not valid TOML: {exc}") from None
+    try:
+        case, station, window = data["case"], data["station"], data["window"]
+        data_dir = os.environ.get("PARCELCAST_DATA") or str(
+            (path.parent / case.get("data_dir", ".")).resolve())
+        analyses = []
+        for item in case["analyses"]:
+            text = str(item).replace("${PARCELCAST_DATA}", data_dir)
+            full = Path(text) if Path(text).is_absolute() else path.parent / text
+            analyses.append(str(full))
+        start = _utc(window["start"])
+        end = _utc(window["end"])
+        return Case(title=str(case.get("title", path.stem)), analyses=analyses,
+                    station_name=str(station.get("name", "station")), lat=float(station["lat"]),
+                    lon=float(station["lon"]), start=start, end=end,
+                    level_hpa=float(window.get("level_hPa", 850)),
+                    wind=str(case.get("wind", "actual")), members=int(case.get("members", 5)),
+                    source=path)
+    except KeyError as exc:
+        raise ParcelcastError(f"{path}: missing key {exc} (see the case-file format in "
+                              "parcelcast/review.py)") from None
+
+
+def _utc(value) -> np.datetime64:
+    import pandas as pd
+
+    stamp = pd.Timestamp(value)
+    if stamp.tzinfo is not None:
+        stamp = stamp.tz_convert("UTC").tz_localize(None)
+    return np.datetime64(stamp.to_datetime64(), "ns")
+
+
+def build_review(case: Case, ds=None) -> dict:
+    """Everything a review shows, computed by the library (no drawing here)."""
+    from parcelcast.budget import eulerian_split, lagrangian_split, split_fields
+    from parcelcast.io.analysis import open_analysis
+
+    if ds is None:
+        roles = ["temperature", "omega"] + (["u", "v"] if case.wind == "actual" else ["geopotential"])
+        ds = open_analysis(case.analyses, roles=roles)
+    times = ds["time"].values
+    inside = times[(times > case.start) & (times <= case.end)]
+    timeline = [{"time": case.start, "observed_change_K": 0.0, "advective_K": 0.0,
+                 "vertical_K": 0.0 if "omega" in ds else None, "residual_K": 0.0}]
+    for when in inside:
+        part = eulerian_split(ds, case.lat, case.lon, case.level_hpa, case.start, when, case.wind)
+        timeline.append({"time": when, **{k: part[k] for k in
+                                          ("observed_change_K", "advective_K", "vertical_K", "residual_K")}})
+    whole = eulerian_split(ds, case.lat, case.lon, case.level_hpa, case.start, case.end, case.wind)
+    lagr = lagrangian_split(ds, case.lat, case.lon, case.level_hpa, case.start, case.end,
+                            whole["observed_change_K"], case.wind, case.members)
+    key_times = [case.end]
+    middle = inside[len(inside) // 2] if inside.size > 2 else None
+    if middle is not None and middle != case.end:
+        key_times.insert(0, middle)
+    trajectories = {}
+    for when in key_times:
+        if when == case.end:
+            trajectories[when] = lagr["paths"]
+        else:
+            trajectories[when] = lagrangian_split(ds, case.lat, case.lon, case.level_hpa, case.start,
+                                                  when, 0.0, case.wind, case.members)["paths"]
+    fields = split_fields(ds, case.level_hpa, case.start, case.end, case.wind)
+    return {"case": case, "timeline": timeline, "eulerian": whole, "lagrangian": lagr,
+            "trajectories": trajectories, "fields": fields}
