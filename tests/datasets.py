@@ -227,3 +227,30 @@ def write_netcdf(ds: xr.Dataset, path: Path, fmt: str = "NETCDF4") -> Path:
     """Write a raw dataset to NetCDF (``NETCDF4`` or ``NETCDF3_64BIT`` classic) and return the path."""
     ds.to_netcdf(path, format=fmt, engine="netcdf4")
     return path
+
+
+# ------------------------------------------------------------------------- GRIB, second route
+def grib_field(path, short_name: str, level: float, type_of_level: str = "isobaricInhPa"):
+    """(lat, lon, values) of one GRIB message read with eccodes directly (not through cfgrib or
+    parcelcast): the independent route for values taken from real files. Grid as stored."""
+    import pyproj  # noqa: F401  (PROJ before eccodes: see the issue's pitfalls)
+    import eccodes
+
+    with open(path, "rb") as handle:
+        while True:
+            gid = eccodes.codes_grib_new_from_file(handle)
+            if gid is None:
+                raise LookupError(f"{short_name} at {level} not in {path}")
+            try:
+                if (eccodes.codes_get(gid, "shortName") == short_name
+                        and eccodes.codes_get(gid, "typeOfLevel") == type_of_level
+                        and float(eccodes.codes_get(gid, "level")) == float(level)):
+                    ni, nj = eccodes.codes_get(gid, "Ni"), eccodes.codes_get(gid, "Nj")
+                    values = eccodes.codes_get_array(gid, "values").reshape(nj, ni)
+                    lat = eccodes.codes_get_array(gid, "distinctLatitudes")
+                    lon = eccodes.codes_get_array(gid, "distinctLongitudes")
+                    if eccodes.codes_get(gid, "jScansPositively") == 0:
+                        lat = np.sort(lat)[::-1]
+                    return lat, lon, values
+            finally:
+                eccodes.codes_release(gid)
