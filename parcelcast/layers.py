@@ -44,9 +44,9 @@ def layer_mean_temperature(ds, bottom_pa: float, top_pa: float):
         raise ValueError("the bottom pressure must exceed the top pressure")
     src = ds.attrs.get("source_files", "")
     phi = ds["geopotential"]
-    thickness = (phi.isel(level=_level_index(ds, top_pa, src))
-                 - phi.isel(level=_level_index(ds, bottom_pa, src)))
-    mean = thickness.drop_vars("level") / (DRY_AIR_GAS_CONSTANT * np.log(bottom_pa / top_pa))
+    thickness = (phi.isel(level=_level_index(ds, top_pa, src), drop=True)
+                 - phi.isel(level=_level_index(ds, bottom_pa, src), drop=True))
+    mean = thickness / (DRY_AIR_GAS_CONSTANT * np.log(bottom_pa / top_pa))
     mean.attrs = {
         "units": "K", "standard_name": "virtual_temperature",
         "long_name": f"layer-mean virtual temperature {bottom_pa / 100:g}-{top_pa / 100:g} hPa "
