@@ -142,7 +142,10 @@ def open_grib(path: Path) -> GribGroups:
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            groups = cfgrib.open_datasets(str(path), indexpath=_index_path(path), cache_geo_coords=True)
+            # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
+            # reads only those, and otherwise writes its index next to the input.
+            groups = cfgrib.open_datasets(str(path), backend_kwargs={"indexpath": _index_path(path)},
+                                          cache_geo_coords=True)
     except Exception as exc:
         raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
     upper, single = [], []
