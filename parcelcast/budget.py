@@ -295,9 +295,23 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
             "upstream_K": upstream,
             "upstream_status": status,
         })
+    out.append(_top_temperature(ds, lat, lon, now))
     return [{"now_K": t_now, "advection_now_K_per_h": adv_now,
              "assumptions": {
                  "advective_extrapolation": "present advection persists unchanged; no diabatic "
                                             "or vertical-motion change",
                  "upstream": "steady flow (the latest analysis); the air keeps its temperature "
                              "along an isobaric path"}}] + out
+
+
+def _top_temperature(ds, lat: float, lon: float, now) -> dict:
+    """(c) Top-temperature guidance from the analysis column (common practice), if possible."""
+    from parcelcast.errors import ParcelcastError
+    from parcelcast.profiles import column_from_analysis, top_temperature_guidance
+
+    try:
+        column = column_from_analysis(ds, lat, lon, now)
+    except ParcelcastError as exc:
+        return {"top_temperature": None, "top_temperature_note": f"not available: {exc}"}
+    result = top_temperature_guidance(column.pressure, column.temperature)
+    return {"top_temperature": result}

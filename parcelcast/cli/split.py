@@ -22,6 +22,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="advecting wind (default: actual)")
     parser.add_argument("--members", type=int, default=5,
                         help="trajectories in the cloud of starts for the Lagrangian spread (default 5)")
+    parser.add_argument("--guidance", action="store_true",
+                        help="add station guidance for the next 6, 12 and 24 h from the latest analysis")
     parser.add_argument("--json", action="store_true", help="print JSON")
 
 
@@ -31,7 +33,9 @@ def run(args) -> int:
     from parcelcast.io.analysis import open_analysis
 
     roles = ["temperature", "omega"] + (["u", "v"] if args.wind == "actual" else ["geopotential"])
-    ds = open_analysis(args.files, dict(args.var), roles=roles)
+    if args.guidance:  # the column for the top-temperature guidance
+        roles += ["geopotential", "relative_humidity", "specific_humidity", "surface_pressure"]
+    ds = open_analysis(args.files, dict(args.var), roles=sorted(set(roles)))
     station = None
     if args.obs:
         from parcelcast.io.station import read_station_series
@@ -40,6 +44,10 @@ def run(args) -> int:
     result = trend_split(ds, *args.at, args.level, args.start, args.end, args.wind,
                          args.radius_km, station, args.members)
     summary = to_json(result, args)
+    if args.guidance:
+        from parcelcast.budget import station_guidance
+
+        summary["guidance"] = station_guidance(ds, *args.at, args.level, wind=args.wind)
     summary["disclaimer"] = DISCLAIMER
     if args.json:
         print_json(summary)
@@ -102,6 +110,14 @@ def print_text(s: dict) -> None:
         f"  Lagrangian: non-advective {f(s['lagrangian']['non_advective_K'])}, advective "
         f"{f(s['lagrangian']['advective_K'])}, spread {f(s['lagrangian']['spread_K'])}",
         f"  Eulerian minus Lagrangian advective part: {f(s['advective_difference_K'])}",
-        s["disclaimer"],
     ]
+    for item in s.get("guidance", [])[1:]:
+        if "lead_h" in item:
+            up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"
+            lines.append(f"  guidance +{item['lead_h']} h: advective extrapolation "
+                         f"{item['advective_extrapolation_K']:.1f} K, upstream {up}")
+        elif item.get("top_temperature"):
+            lines.append(f"  top temperature (mixing down, common practice): "
+                         f"{item['top_temperature']['temperature_K']:.1f} K")
+    lines.append(s["disclaimer"])
     print("\n".join(lines))
