@@ -28,6 +28,17 @@ _PUBLIC = {
     # sampling
     "value_at": "parcelcast.sampling",
     "area_mean": "parcelcast.sampling",
+    # trajectories
+    "compute_trajectories": "parcelcast.trajectories.api",
+    "write_trajectories": "parcelcast.trajectories.output",
+    # profiles
+    "read_profile_csv": "parcelcast.profiles",
+    "column_from_analysis": "parcelcast.profiles",
+    "analyse": "parcelcast.profiles",
+    # the trend split
+    "trend_split": "parcelcast.budget",
+    "split_fields": "parcelcast.budget",
+    "station_guidance": "parcelcast.budget",
 }
 
 __all__ = sorted(_PUBLIC)
