@@ -81,3 +81,16 @@ def test_wet_bulb_potential_temperature_shares_theta_e(t, td, p):
         equivalent_potential_temperature(t, td, p), abs=0.4)
     # saturated air at 1000 hPa: theta_W equals its temperature
     assert wet_bulb_potential_temperature(290.0, 290.0, 100000.0) == pytest.approx(290.0, abs=1e-6)
+
+
+def test_tabulated_pseudoadiabats_match_integration():
+    from parcelcast.thermo import pseudoadiabat_lookup
+
+    rng = np.random.default_rng(3)
+    t0 = rng.uniform(230.0, 305.0, 300)
+    p0 = rng.uniform(50000.0, 100000.0, 300)
+    p = np.geomspace(105000.0, 1000.0, 120)
+    direct = pseudoadiabat(t0, p0, p, max_step=0.005)
+    np.testing.assert_allclose(pseudoadiabat_lookup(t0, p0, p), direct, atol=0.01)
+    assert np.isnan(pseudoadiabat_lookup(np.nan, 90000.0, p)).all()
+    assert np.isnan(pseudoadiabat_lookup(400.0, 90000.0, p)).all()  # outside the table

@@ -189,3 +189,16 @@ def test_property_signs_and_bounds():
                 assert float(r.el_pressure) <= float(r.lfc_pressure) * (1 + 1e-9)
 
     check()
+
+
+def test_table_and_rk4_and_batched_kinds_agree(column):
+    from parcelcast.thermo import lift_parcels
+
+    p, t, td = column
+    both = lift_parcels(p, t, td)
+    for kind in ("surface", "mixed_layer", "most_unstable"):
+        rk4 = lift_parcel(p, t, td, kind, method="rk4")
+        tab = lift_parcel(p, t, td, kind)
+        assert float(tab.cape) == pytest.approx(float(rk4.cape), rel=2e-3)
+        assert float(tab.cin) == pytest.approx(float(rk4.cin), rel=2e-2, abs=0.2)
+        assert float(both[kind].cape) == pytest.approx(float(tab.cape), rel=1e-12)

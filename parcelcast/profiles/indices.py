@@ -29,7 +29,7 @@ from parcelcast.profiles.thermal_wind import thermal_wind_advection
 from parcelcast.thermo import (
     PARCELS,
     lcl_romps,
-    lift_parcel,
+    lift_parcels,
     mixing_ratio_from_dewpoint,
     potential_temperature,
     pseudoadiabat,
@@ -136,9 +136,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     """
     p, z, t, td = profile.pressure, profile.height, profile.temperature, profile.dewpoint
     res = {}
-    parcels = {}
-    for kind in PARCELS:
-        parcels[kind] = lift_parcel(p, t, td, kind)
+    parcels = lift_parcels(p, t, td, PARCELS)
     per = lambda attr, scale=1.0: {k: float(getattr(r, attr)) * scale for k, r in parcels.items()}  # noqa: E731
     res["cape_J_per_kg"] = per("cape")
     res["cin_J_per_kg"] = per("cin")

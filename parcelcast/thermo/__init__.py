@@ -19,6 +19,7 @@ from parcelcast.thermo.lcl import lcl_pressure_bolton, lcl_romps, lcl_temperatur
 from parcelcast.thermo.moist import (
     equivalent_potential_temperature,
     pseudoadiabat,
+    pseudoadiabat_lookup,
     pseudoadiabatic_lapse_rate,
     saturation_equivalent_potential_temperature,
     wet_bulb_potential_temperature,
@@ -38,7 +39,7 @@ from parcelcast.thermo.moisture import (
     vapour_pressure_from_mixing_ratio,
     wet_bulb_temperature,
 )
-from parcelcast.thermo.parcel import PARCELS, ParcelResult, interpolate_at_pressure, lift_parcel
+from parcelcast.thermo.parcel import PARCELS, ParcelResult, interpolate_at_pressure, lift_parcel, lift_parcels
 from parcelcast.thermo.saturation import (
     dewpoint_from_vapour_pressure,
     saturation_vapour_pressure,
@@ -78,6 +79,7 @@ __all__ = [
     "lcl_pressure_bolton",
     "pseudoadiabatic_lapse_rate",
     "pseudoadiabat",
+    "pseudoadiabat_lookup",
     "equivalent_potential_temperature",
     "saturation_equivalent_potential_temperature",
     "wet_bulb_potential_temperature",
@@ -85,5 +87,6 @@ __all__ = [
     "PARCELS",
     "ParcelResult",
     "lift_parcel",
+    "lift_parcels",
     "interpolate_at_pressure",
 ]

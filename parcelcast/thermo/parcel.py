@@ -36,11 +36,11 @@ import numpy as np
 
 from parcelcast.thermo.constants import EPSILON, KAPPA, P0, RD, ROMPS_CVA, ROMPS_CVV, ROMPS_RAIR, ROMPS_RVAP
 from parcelcast.thermo.lcl import lcl_romps
-from parcelcast.thermo.moist import equivalent_potential_temperature, pseudoadiabat
+from parcelcast.thermo.moist import equivalent_potential_temperature, pseudoadiabat, pseudoadiabat_lookup
 from parcelcast.thermo.moisture import mixing_ratio_from_dewpoint
 from parcelcast.thermo.saturation import dewpoint_from_vapour_pressure, saturation_vapour_pressure
 
-__all__ = ["PARCELS", "ParcelResult", "lift_parcel", "parcel_start", "interpolate_at_pressure"]
+__all__ = ["PARCELS", "ParcelResult", "lift_parcel", "lift_parcels", "parcel_start", "interpolate_at_pressure"]
 
 PARCELS = ("surface", "mixed_layer", "most_unstable")
 
@@ -171,7 +171,7 @@ def parcel_start(pressure, temperature, dewpoint, parcel="surface", surface_pres
 
 
 def lift_parcel(pressure, temperature, dewpoint, parcel="surface", surface_pressure=None,
-                ml_depth=10000.0, mu_depth=30000.0, max_step=0.02):
+                ml_depth=10000.0, mu_depth=30000.0, method="table", max_step=0.02):
     """Lift a parcel in each column and return its indices (:class:`ParcelResult`).
 
     Parameters
@@ -188,8 +188,11 @@ def lift_parcel(pressure, temperature, dewpoint, parcel="surface", surface_press
         Levels below ground (p > surface pressure) are ignored.
     ml_depth, mu_depth : float
         Depths (Pa) of the mixed layer and of the search for the most unstable parcel.
+    method : {"table", "rk4"}
+        Pseudo-adiabat by the tabulated curves (:func:`~parcelcast.thermo.moist.pseudoadiabat_lookup`,
+        within 0.01 K of the integration, fast) or by direct RK4 integration.
     max_step : float
-        Runge-Kutta step (ln p) of the pseudo-adiabat.
+        Runge-Kutta step (ln p) of the pseudo-adiabat with ``method="rk4"``.
 
     Returns
     -------
@@ -208,6 +211,31 @@ def lift_parcel(pressure, temperature, dewpoint, parcel="surface", surface_press
     td = np.broadcast_to(np.asarray(dewpoint, dtype=np.float64), t.shape)
     valid = _valid_mask(p, t, surface_pressure)
     p0, t0, td0, idx = parcel_start(p, t, td, parcel, surface_pressure, ml_depth, mu_depth)
+    return _lift(p, t, td, valid, p0, t0, td0, idx, method, max_step)
+
+
+def lift_parcels(pressure, temperature, dewpoint, parcels=PARCELS, surface_pressure=None,
+                 ml_depth=10000.0, mu_depth=30000.0, method="table", max_step=0.02):
+    """Lift several parcel kinds of the same columns in one vectorised pass.
+
+    Same parameters as :func:`lift_parcel`, with ``parcels`` a sequence of kinds.
+    Returns ``{kind: ParcelResult}``.  Faster than one call per kind because the
+    kinds share one evaluation of the pseudo-adiabats.
+    """
+    t = np.asarray(temperature, dtype=np.float64)
+    p = np.broadcast_to(np.asarray(pressure, dtype=np.float64), t.shape)
+    td = np.broadcast_to(np.asarray(dewpoint, dtype=np.float64), t.shape)
+    valid = _valid_mask(p, t, surface_pressure)
+    starts = [parcel_start(p, t, td, kind, surface_pressure, ml_depth, mu_depth) for kind in parcels]
+    n = len(parcels)
+    stack = lambda a: np.broadcast_to(a, (n,) + a.shape)  # noqa: E731
+    res = _lift(stack(p), stack(t), stack(td), stack(valid), *(np.stack([s[i] for s in starts]) for i in range(4)),
+                method, max_step)
+    return {kind: ParcelResult(**{name: getattr(res, name)[i] for name in res.__dataclass_fields__})
+            for i, kind in enumerate(parcels)}
+
+
+def _lift(p, t, td, valid, p0, t0, td0, idx, method, max_step):
     td0 = np.minimum(td0, t0)
 
     # dry ascent to the exact LCL, then the pseudo-adiabat
@@ -218,7 +246,12 @@ def lift_parcel(pressure, temperature, dewpoint, parcel="surface", surface_press
     cpm = (1 - q0) * (ROMPS_CVA + ROMPS_RAIR) + q0 * (ROMPS_CVV + ROMPS_RVAP)
     t_dry = t0[..., None] * (p / p0[..., None]) ** (rm / cpm)[..., None]
     p_clamped = np.minimum(p, p_lcl[..., None])
-    t_moist = pseudoadiabat(t_lcl, p_lcl, p_clamped, max_step=max_step)
+    if method == "table":
+        t_moist = pseudoadiabat_lookup(t_lcl, p_lcl, p_clamped)
+    elif method == "rk4":
+        t_moist = pseudoadiabat(t_lcl, p_lcl, p_clamped, max_step=max_step)
+    else:
+        raise ValueError(f"unknown method {method!r}; valid: table, rk4")
     below = p >= p_lcl[..., None]
     tp = np.where(below, t_dry, t_moist)
     es = saturation_vapour_pressure(tp)
