@@ -236,6 +236,14 @@ def grib_field(path, short_name: str, level: float, type_of_level: str = "isobar
     import pyproj  # noqa: F401  (PROJ before eccodes: see the issue's pitfalls)
     import eccodes
 
+    eccodes.codes_grib_multi_support_on()  # GRIB2 messages may hold u and v together
+    try:
+        return _find_message(eccodes, path, short_name, level, type_of_level)
+    finally:
+        eccodes.codes_grib_multi_support_off()  # global eccodes state: leave it as found
+
+
+def _find_message(eccodes, path, short_name, level, type_of_level):
     with open(path, "rb") as handle:
         while True:
             gid = eccodes.codes_grib_new_from_file(handle)
@@ -254,3 +262,14 @@ def grib_field(path, short_name: str, level: float, type_of_level: str = "isobar
                     return lat, lon, values
             finally:
                 eccodes.codes_release(gid)
+
+
+def cli_command() -> list[str]:
+    """The ``parcelcast`` console script, or the same entry point through this Python."""
+    import shutil
+    import sys
+
+    exe = shutil.which("parcelcast")
+    if exe:
+        return [exe]
+    return [sys.executable, "-c", "import sys; from parcelcast.cli import main; sys.exit(main())"]
