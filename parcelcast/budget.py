@@ -251,11 +251,19 @@ def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: 
                 radius_km: float | None = None, station=None, members: int = 5) -> dict:
     """Both views side by side, with their difference as a consistency measure."""
     euler = eulerian_split(ds, lat, lon, level_hpa, start, end, wind, radius_km, station)
-    lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, euler["observed_change_K"],
-                            wind, members)
+    # The Lagrangian split follows the first analysis member's unperturbed trajectory, so it is
+    # compared with that member's own observed change and advective part.
+    observed = euler["observed_change_K"]
+    eulerian_advective = euler["advective_K"]
+    if "observed_change_members_K" in euler and station is None:
+        observed = euler["observed_change_members_K"][0]
+    if "advective_members_K" in euler:
+        eulerian_advective = euler["advective_members_K"][0]
+    lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members)
+    lagr["observed_change_K"] = observed
     difference = None
-    if lagr["advective_K"] is not None and np.isfinite(euler["advective_K"]):
-        difference = euler["advective_K"] - lagr["advective_K"]
+    if lagr["advective_K"] is not None and np.isfinite(eulerian_advective):
+        difference = eulerian_advective - lagr["advective_K"]
     return {"eulerian": euler, "lagrangian": lagr, "advective_difference_K": difference}
 
 

@@ -16,8 +16,10 @@ EARTH_ANGULAR_VELOCITY = 7.292115e-5
 STANDARD_GRAVITY = 9.80665
 
 # --- Dry air and water vapour --------------------------------------------
-#: Specific gas constant of dry air (J kg-1 K-1). R* / M_d with CODATA 2018
-#: R* = 8.314462618 and M_d = 28.9647 g/mol (US Standard Atmosphere 1976).
+#: Specific gas constant of dry air (J kg-1 K-1): the customary meteorological value
+#: (value recalled from memory; Bolton 1980 uses 287.04). R*/M_d with CODATA 2018
+#: R* = 8.314462618 and M_d = 28.9647 g/mol (US Standard Atmosphere 1976) gives 287.055,
+#: 3e-5 larger: immaterial for every result here.
 DRY_AIR_GAS_CONSTANT = 287.0470
 #: Specific gas constant of water vapour (J kg-1 K-1). R* / M_w, M_w = 18.01528 g/mol.
 WATER_VAPOUR_GAS_CONSTANT = 461.5228

@@ -58,6 +58,13 @@ def run(args) -> int:
 
 def to_json(result: dict, args) -> dict:
     euler, lagr = result["eulerian"], result["lagrangian"]
+    # Rounded for JSON so that the printed parts add up exactly to the printed change.
+    observed = json_number(euler["observed_change_K"], 4)
+    advective = json_number(euler["advective_K"], 4)
+    vertical = json_number(euler["vertical_K"], 4) if euler["vertical_available"] else None
+    residual = None
+    if observed is not None and advective is not None:
+        residual = round(observed - advective - (vertical or 0.0), 4)
     out = {
         "start": iso_utc(args.start),
         "end": iso_utc(args.end),
@@ -65,12 +72,15 @@ def to_json(result: dict, args) -> dict:
         "lon": args.at[1],
         "level_hPa": args.level,
         "wind": args.wind,
-        "observed_change_K": json_number(euler["observed_change_K"], 4),
-        "advective_K": json_number(euler["advective_K"], 4),
-        "vertical_K": json_number(euler["vertical_K"], 4) if euler["vertical_available"] else None,
-        "residual_K": json_number(euler["residual_K"], 4),
+        "observed_change_K": observed,
+        "advective_K": advective,
+        "vertical_K": vertical,
+        "residual_K": residual,
         "observed_source": euler["observed_source"],
         "lagrangian": {
+            "followed": "the unperturbed trajectory of the first analysis member; its spread "
+                        "covers the cloud of starts and all members",
+            "observed_change_K": json_number(lagr["observed_change_K"], 4),
             "non_advective_K": json_number(lagr["non_advective_K"], 4),
             "advective_K": json_number(lagr["advective_K"], 4),
             "spread_K": json_number(lagr["spread_K"], 4),

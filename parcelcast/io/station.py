@@ -77,10 +77,16 @@ def read_station_series(path) -> StationSeries:
             stamp = stamp.tz_convert("UTC").tz_localize(None)
         times.append(stamp.to_datetime64())
     raw = frame[columns[found[0]]].str.strip()
-    try:
-        values = np.array([float(v) if v else np.nan for v in raw])
-    except ValueError as exc:
-        raise ParcelcastError(f"{path}: column {columns[found[0]]}: {exc}") from None
+    values = np.full(len(raw), np.nan)
+    for i, text in enumerate(raw):
+        if not text:
+            continue  # an empty cell is a missing value
+        try:
+            values[i] = float(text)
+        except ValueError:
+            raise ParcelcastError(
+                f"{path}: row {i + 2}: column {columns[found[0]]}: {text!r} is not a number "
+                "(leave the cell empty for a missing value)") from None
     kelvin = convert(values, _TEMPERATURE_COLUMNS[found[0]], "temperature", "station temperature",
                      str(path))
     times = np.array(times, dtype="datetime64[ns]")
