@@ -29,9 +29,9 @@ def summary_rows(review: dict) -> list[tuple[str, str]]:
         ("Lagrangian advective part", _k(lg["advective_K"])),
         ("Spread of the Lagrangian estimate", _k(lg["spread_K"])),
     ]
-    if lg["advective_K"] is not None:
-        rows.append(("Eulerian minus Lagrangian advective part",
-                     _k(e["advective_K"] - lg["advective_K"])))
+    if review["advective_difference_K"] is not None:
+        rows.append(("Eulerian minus Lagrangian advective part (same member)",
+                     _k(review["advective_difference_K"])))
     return rows
 
 

@@ -93,7 +93,7 @@ def _utc(value) -> np.datetime64:
 
 def build_review(case: Case, ds=None) -> dict:
     """Everything a review shows, computed by the library (no drawing here)."""
-    from parcelcast.budget import eulerian_split, lagrangian_split, split_fields
+    from parcelcast.budget import eulerian_split, lagrangian_split, split_fields, trend_split
     from parcelcast.io.analysis import open_analysis
 
     if ds is None:
@@ -107,9 +107,9 @@ def build_review(case: Case, ds=None) -> dict:
         part = eulerian_split(ds, case.lat, case.lon, case.level_hpa, case.start, when, case.wind)
         timeline.append({"time": when, **{k: part[k] for k in
                                           ("observed_change_K", "advective_K", "vertical_K", "residual_K")}})
-    whole = eulerian_split(ds, case.lat, case.lon, case.level_hpa, case.start, case.end, case.wind)
-    lagr = lagrangian_split(ds, case.lat, case.lon, case.level_hpa, case.start, case.end,
-                            whole["observed_change_K"], case.wind, case.members)
+    split = trend_split(ds, case.lat, case.lon, case.level_hpa, case.start, case.end, case.wind,
+                        members=case.members)
+    whole, lagr = split["eulerian"], split["lagrangian"]
     key_times = [case.end]
     middle = inside[len(inside) // 2] if inside.size > 2 else None
     if middle is not None and middle != case.end:
@@ -123,4 +123,5 @@ def build_review(case: Case, ds=None) -> dict:
                                                   when, 0.0, case.wind, case.members)["paths"]
     fields = split_fields(ds, case.level_hpa, case.start, case.end, case.wind)
     return {"case": case, "timeline": timeline, "eulerian": whole, "lagrangian": lagr,
+            "advective_difference_K": split["advective_difference_K"],
             "trajectories": trajectories, "fields": fields}
