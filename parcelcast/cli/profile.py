@@ -39,7 +39,9 @@ def _clean(obj):
         return {k: _clean(v) for k, v in obj.items() if not k.startswith("_")}
     if isinstance(obj, (list, tuple)):
         return [_clean(v) for v in obj]
-    if isinstance(obj, (float, np.floating, int, np.integer)) and not isinstance(obj, bool):
+    if isinstance(obj, (int, np.integer)) and not isinstance(obj, bool):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
         return _common.json_number(obj, 4)
     return obj
 

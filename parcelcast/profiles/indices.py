@@ -56,8 +56,9 @@ def _interp(p, values, target):
 def crossing_height(height, values, threshold):
     """Height (m) of the highest crossing of ``threshold`` by ``values`` (warm below, cold above).
 
-    NaN when the whole column is at or below the threshold; the lowest height when
-    only... the ground level is above it and the next level below it is handled as a crossing.
+    Linear interpolation in height between the two levels around the crossing.  NaN
+    when the whole column is at or below the threshold, or still above it at the top
+    of the data.
     """
     z = np.asarray(height, dtype=np.float64)
     f = np.asarray(values, dtype=np.float64) - threshold

@@ -14,6 +14,10 @@ all temperatures (no ice phase).  Compared with a tightly-toleranced
 0.001 K from 1000 to 100 hPa; Bolton's (1980) theta_E, itself a fit to pseudo-adiabats,
 is conserved along our adiabats to within about 0.2 K from 1000 to 300 hPa (see the tests and
 ``design_notes/thermodynamics.md``).
+
+:func:`pseudoadiabat_lookup` gives the same curves (within 0.01 K) by bilinear
+interpolation in a table built once from :func:`pseudoadiabat`; the parcel kernel
+uses it because it needs no loop over levels.
 """
 
 from __future__ import annotations
@@ -24,11 +28,7 @@ import numpy as np
 
 from parcelcast.thermo.constants import CPD, CPV, DLV_DT, EPSILON, RD, T_ZERO_C
 from parcelcast.thermo.lcl import lcl_temperature_bolton
-from parcelcast.thermo.moisture import (
-    latent_heat_vaporisation,
-    mixing_ratio_from_dewpoint,
-    vapour_pressure_from_dewpoint,
-)
+from parcelcast.thermo.moisture import mixing_ratio_from_dewpoint
 
 __all__ = [
     "pseudoadiabatic_lapse_rate",
