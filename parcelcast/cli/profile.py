@@ -87,10 +87,13 @@ def _text(doc) -> str:
     lines.append(f"  top-temperature guidance {f(g['temperature_K'] and g['temperature_K'] - 273.15, '{:.1f}')} "
                  f"degC (mixing from {f(g['mixing_top_hPa'])} hPa)")
     if doc["layers"]:
-        lines.append("  thermal-wind advection by layer (K/h, + warm):")
-        for lay in doc["layers"]:
+        gridded = doc.get("gridded_layers")
+        lines.append("  thermal-wind advection by layer (K/h, + warm)"
+                     + (", and gridded -V.grad T at the point:" if gridded else ":"))
+        for i, lay in enumerate(doc["layers"]):
+            extra = f"   gridded {f(gridded[i]['advection_K_per_h'], '{:+.2f}')}" if gridded else ""
             lines.append(f"    {lay['bottom_hPa']:.0f}-{lay['top_hPa']:.0f} hPa  "
-                         f"{f(lay['advection_K_per_h'], '{:+.2f}')}")
+                         f"{f(lay['advection_K_per_h'], '{:+.2f}')}{extra}")
     for n in doc["notes"]:
         lines.append(f"  note: {n}")
     lines.append(doc["disclaimer"])

@@ -124,7 +124,7 @@ def draw_parcel(profile, parcel, ax=None, label="surface parcel"):
     """The lifted parcel (a :class:`parcelcast.thermo.ParcelResult` of this profile) and its areas.
 
     Positive area: parcel warmer than the environment from its origin to the EL;
-    negative area: colder, below the LFC.  Returns ``{"parcel", "positive", "negative"}``.
+    negative area: colder, below the LFC (none drawn when the parcel has no LFC).  Returns ``{"parcel", "positive", "negative"}``.
     """
     ax = _new_ax(ax)
     ph = profile.pressure / 100.0
@@ -139,7 +139,7 @@ def draw_parcel(profile, parcel, ax=None, label="surface parcel"):
     upper = ok & ((ph >= el) if np.isfinite(el) else False)
     pos = ax.fill_betweenx(ph, xe, xp, where=upper & (tp >= te), interpolate=True,
                            color=COLOURS["positive"], alpha=0.45, lw=0, label="positive area", zorder=2)
-    lower = ok & ((ph >= lfc) if np.isfinite(lfc) else np.ones_like(ok))
+    lower = ok & ((ph >= lfc) if np.isfinite(lfc) else np.zeros_like(ok))  # no LFC: no CIN to show
     neg = ax.fill_betweenx(ph, xe, xp, where=lower & (tp < te), interpolate=True,
                            color=COLOURS["negative"], alpha=0.45, lw=0, label="negative area", zorder=2)
     marks = []
