@@ -156,3 +156,20 @@ def test_help_is_fast_and_imports_nothing_heavy():
              f"print([m for m in {HEAVY!r} if m in sys.modules])\n")
     done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, check=True)
     assert done.stdout.strip().splitlines()[-1] == "[]", done.stdout
+
+
+def test_point_longitude_forms_agree(tmp_path, capsys):
+    # the same point written as 358.5 or -1.5 (global grid stored 0..360), and -175 or 185 on a
+    # regional grid across the dateline: identical answers (longitude is modulo 360)
+    lat, lon, t, u, v = small_atmosphere(seed=3)
+    glob = write_netcdf(raw_cf(lat, lon, t, u, v, lon_0_360=True), tmp_path / "g.nc")
+    lat, lon, t, u, v = small_atmosphere(seed=3, lon0=150.0, dlon=5.0, nx=13)
+    lon = np.mod(lon + 180.0, 360.0) - 180.0
+    order = np.argsort(lon)
+    reg = write_netcdf(raw_cf(lat, lon[order], t[:, order], u[:, order], v[:, order]),
+                       tmp_path / "r.nc")
+    for path, a, b in ((glob, "40,358.5", "40,-1.5"), (reg, "40,-175", "40,185")):
+        first = _run_json(capsys, [str(path), "--level", "850", "--at", a])
+        second = _run_json(capsys, [str(path), "--level", "850", "--at", b])
+        for key in ("temperature_K", "u_m_s", "v_m_s", "advection_K_per_h"):
+            assert first[key] == second[key], (path.name, key)
