@@ -209,6 +209,7 @@ def _find_role(role: Role, parts: list[xr.Dataset], overrides, path: Path):
         lambda n, v: n.lower() in role.common_names,
     )
     kinds = (role.kind, *role.also_kinds)
+    misfit = None
     for match in matchers:
         for part in parts:
             for name, var in part.data_vars.items():
@@ -216,9 +217,23 @@ def _find_role(role: Role, parts: list[xr.Dataset], overrides, path: Path):
                     continue
                 if not role.on_levels and "level" in var.dims:
                     continue
-                if match(name, var) and _units_fit(var, kinds):
+                if not match(name, var):
+                    continue
+                if _units_fit(var, kinds):
                     return var
+                if misfit is None and str(name).lower() not in _SHARED_NAMES:
+                    misfit = var
+    if misfit is not None:  # recognised by name, but its units cannot be this quantity
+        units = misfit.attrs.get("units") or misfit.attrs.get("GRIB_units")
+        raise UnitsError(role.name, units, " or ".join(
+            f"{k} ({QUANTITY_KINDS[k][1]})" for k in kinds), f"{path} variable '{misfit.name}'")
     return None
+
+
+#: names that several roles share (GRIB "w" is omega in Pa/s, elsewhere w in m/s): for these
+#: the units decide the role, and a misfit is not an error.
+_SHARED_NAMES = {n for r in ROLES.values() for n in r.common_names
+                 if sum(n in other.common_names for other in ROLES.values()) > 1}
 
 
 def _units_fit(var: xr.DataArray, kinds) -> bool:

@@ -27,10 +27,17 @@ def atomic_path(target):
     tmp = Path(tmp_name)
     try:
         yield tmp
+        os.chmod(tmp, 0o666 & ~_current_umask())  # mkstemp makes 0600; outputs are ordinary files
         os.replace(tmp, target)
     finally:
         if tmp.exists():
             tmp.unlink()
+
+
+def _current_umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def write_text(target, text: str) -> None:
