@@ -24,7 +24,7 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast.profiles.guidance import top_temperature_guidance
-from parcelcast.profiles.profile import Profile
+from parcelcast.profiles.profile import Profile, value_at_pressure
 from parcelcast.profiles.thermal_wind import thermal_wind_advection
 from parcelcast.thermo import (
     PARCELS,
@@ -40,17 +40,6 @@ from parcelcast.thermo import (
 from parcelcast.thermo.constants import G0, RHO_WATER, T_ZERO_C
 
 __all__ = ["analyse", "crossing_height", "inversions", "precipitable_water"]
-
-
-def _interp(p, values, target):
-    ok = np.isfinite(values)
-    if ok.sum() < 2:
-        return np.nan
-    x = -np.log(p[ok])
-    xt = -np.log(target)
-    if xt < x.min() - 1e-9 or xt > x.max() + 1e-9:
-        return np.nan
-    return float(np.interp(xt, x, values[ok]))
 
 
 def crossing_height(height, values, threshold):
@@ -149,11 +138,11 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     sfc = parcels["surface"]
     res["lcl_hPa"] = float(sfc.lcl_pressure) / 100.0
     res["lcl_temperature_K"] = float(sfc.lcl_temperature)
-    res["lcl_height_m"] = _interp(p, z, float(sfc.lcl_pressure))
+    res["lcl_height_m"] = value_at_pressure(p, z, float(sfc.lcl_pressure))
     res["lifted_index_K"] = float(parcels["mixed_layer"].lifted_index)
 
-    t850, t700, t500 = (_interp(p, t, x) for x in (85000.0, 70000.0, 50000.0))
-    td850, td700 = _interp(p, td, 85000.0), _interp(p, td, 70000.0)
+    t850, t700, t500 = (value_at_pressure(p, t, x) for x in (85000.0, 70000.0, 50000.0))
+    td850, td700 = value_at_pressure(p, td, 85000.0), value_at_pressure(p, td, 70000.0)
     res["k_index_K"] = (t850 - t500) + (td850 - T_ZERO_C) - (t700 - td700)
     res["total_totals_K"] = (t850 - T_ZERO_C) + (td850 - T_ZERO_C) - 2 * (t500 - T_ZERO_C)
     if np.isfinite(t850) and np.isfinite(td850) and np.isfinite(t500):
@@ -170,7 +159,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     res["minus10_level_m"] = crossing_height(z, t, T_ZERO_C - 10.0)
     tw = wet_bulb_temperature(t, td, p)
     res["wet_bulb_zero_m"] = crossing_height(z, tw, T_ZERO_C)
-    z850, z700, z500 = (_interp(p, z, x) for x in (85000.0, 70000.0, 50000.0))
+    z850, z700, z500 = (value_at_pressure(p, z, x) for x in (85000.0, 70000.0, 50000.0))
     res["lapse_rate_850_500_K_per_km"] = _lapse(z850, z500, t850, t500)
     res["lapse_rate_700_500_K_per_km"] = _lapse(z700, z500, t700, t500)
     ok = np.isfinite(t)

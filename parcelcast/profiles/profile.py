@@ -195,3 +195,15 @@ def validate(profile: Profile, column_names: dict[str, str] | None = None) -> Pr
         else:
             profile.notes.append("missing heights filled by the hypsometric equation")
     return profile
+
+
+def value_at_pressure(p, values, target):
+    """Value at pressure ``target`` (Pa), linear in ln p between finite levels; NaN outside."""
+    ok = np.isfinite(values) & np.isfinite(p)
+    if ok.sum() < 2:
+        return np.nan
+    lnp = -np.log(p[ok])
+    x = -np.log(target)
+    if x < lnp.min() - 1e-9 or x > lnp.max() + 1e-9:
+        return np.nan
+    return float(np.interp(x, lnp, values[ok]))

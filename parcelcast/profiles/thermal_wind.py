@@ -22,6 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast.constants import EARTH_ANGULAR_VELOCITY
+from parcelcast.profiles.profile import value_at_pressure
 from parcelcast.thermo.constants import RD
 
 __all__ = ["DEFAULT_LAYERS_HPA", "coriolis_parameter", "layer_advection", "thermal_wind_advection"]
@@ -70,22 +71,11 @@ def layer_advection(p_bottom, p_top, u_bottom, v_bottom, u_top, v_top, coriolis,
     return f / (RD * depth) * (vm * uT - um * vT)
 
 
-def _interp_lnp(p, values, target):
-    ok = np.isfinite(values) & np.isfinite(p)
-    if ok.sum() < 2:
-        return np.nan
-    lnp = -np.log(p[ok])
-    x = -np.log(target)
-    if x < lnp.min() - 1e-9 or x > lnp.max() + 1e-9:
-        return np.nan
-    return float(np.interp(x, lnp, values[ok]))
-
-
 def _mean_lnp(p, values, bottom, top):
     ok = np.isfinite(values)
     inside = ok & (p < bottom) & (p > top)
     ps = np.concatenate([[bottom], p[inside], [top]])
-    vs = np.concatenate([[_interp_lnp(p, values, bottom)], values[inside], [_interp_lnp(p, values, top)]])
+    vs = np.concatenate([[value_at_pressure(p, values, bottom)], values[inside], [value_at_pressure(p, values, top)]])
     x = np.log(ps)
     return float(np.sum(0.5 * (vs[:-1] + vs[1:]) * (x[:-1] - x[1:])) / (x[0] - x[-1]))
 
@@ -128,8 +118,8 @@ def thermal_wind_advection(pressure, u, v, latitude, layers_hpa=DEFAULT_LAYERS_H
     for pb, pt in zip(bounds[:-1], bounds[1:]):
         if pb > psfc + 1e-6 or pb > pbot_wind + 1e-6 or pt < ptop_wind - 1e-6:
             continue
-        ub, vb = _interp_lnp(p, u, pb), _interp_lnp(p, v, pb)
-        ut, vt = _interp_lnp(p, u, pt), _interp_lnp(p, v, pt)
+        ub, vb = value_at_pressure(p, u, pb), value_at_pressure(p, v, pb)
+        ut, vt = value_at_pressure(p, u, pt), value_at_pressure(p, v, pt)
         um, vm = _mean_lnp(p, u, pb, pt), _mean_lnp(p, v, pb, pt)
         adv = float(layer_advection(pb, pt, ub, vb, ut, vt, f, um, vm))
         out.append({"bottom_hPa": pb / 100.0, "top_hPa": pt / 100.0,
