@@ -32,17 +32,19 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--plot", metavar="PATH.png", help="draw a skew-T log-p diagram to this file")
 
 
-def _clean(obj):
+def _clean(obj, digits: int = 4):
+    """JSON-ready values: 4 decimals, 9 for per-second rates (K s-1 values are ~1e-5)."""
     import numpy as np
 
     if isinstance(obj, dict):
-        return {k: _clean(v) for k, v in obj.items() if not k.startswith("_")}
+        return {k: _clean(v, 9 if k.endswith("_per_s") else digits)
+                for k, v in obj.items() if not k.startswith("_")}
     if isinstance(obj, (list, tuple)):
-        return [_clean(v) for v in obj]
+        return [_clean(v, digits) for v in obj]
     if isinstance(obj, (int, np.integer)) and not isinstance(obj, bool):
         return int(obj)
     if isinstance(obj, (float, np.floating)):
-        return _common.json_number(obj, 4)
+        return _common.json_number(obj, digits)
     return obj
 
 
