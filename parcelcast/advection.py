@@ -6,8 +6,8 @@ scalar per second (K s-1 for temperature).  Missing values (NaN) in any input
 make the result NaN at every point whose stencil touches them; pole rows are
 NaN (the eastward derivative is undefined there).
 
-Three layers (see DEVELOPERS.md): a compiled kernel on float64 arrays
-(:mod:`parcelcast.grid._advection_kernel`),
+Three layers (see DEVELOPERS.md): a kernel on float64 arrays owned by the grid
+(``grid.fill_advection``: compiled for lat-lon grids, numpy for projected grids),
 :func:`advection_array` (numpy, shapes ``(..., ny, nx)``) and :func:`advection`
 (xarray, unit-checked, dask-friendly through ``apply_ufunc``).
 """
@@ -18,7 +18,7 @@ import numpy as np
 
 from parcelcast.grid.latlon import LatLonGrid
 
-def advection_array(scalar, u, v, grid: LatLonGrid) -> np.ndarray:
+def advection_array(scalar, u, v, grid) -> np.ndarray:
     """-(u ds/dx + v ds/dy) on float64 arrays of shape (..., ny, nx).
 
     Parameters
@@ -27,8 +27,8 @@ def advection_array(scalar, u, v, grid: LatLonGrid) -> np.ndarray:
         The advected quantity (any unit X).
     u, v : ndarray (..., ny, nx)
         Eastward and northward wind, m s-1 (broadcastable to ``scalar``).
-    grid : LatLonGrid
-        Geometry with ``grid.shape == (ny, nx)``.
+    grid : LatLonGrid or ProjectedGrid
+        Geometry with ``grid.shape == (ny, nx)``; winds are earth-relative (east, north).
 
     Returns
     -------
@@ -51,21 +51,12 @@ def advection_array(scalar, u, v, grid: LatLonGrid) -> np.ndarray:
     if shape[-2:] != grid.shape:
         raise ValueError(f"field shape {shape[-2:]} does not match the grid {grid.shape}")
     out = np.empty(shape, dtype=np.float64)
-    _advection_kernel(s.reshape(-1, *grid.shape), u.reshape(-1, *grid.shape),
-                      v.reshape(-1, *grid.shape), grid, out.reshape(-1, *grid.shape))
+    grid.fill_advection(s.reshape(-1, *grid.shape), u.reshape(-1, *grid.shape),
+                        v.reshape(-1, *grid.shape), out.reshape(-1, *grid.shape))
     return out
 
 
-def _advection_kernel(s, u, v, grid: LatLonGrid, out) -> None:
-    """Fill ``out`` (n, ny, nx) with -(u ds/dx + v ds/dy); all arrays C-contiguous float64."""
-    from parcelcast.grid._advection_kernel import advect_fields
-
-    xs, ys = grid.x_stencil(), grid.y_stencil()
-    advect_fields(s, u, v, xs.index, xs.weight, ys.index, ys.weight,
-                  grid.inv_dx_factor(), 1.0 / grid.radius, out)
-
-
-def advection(scalar, u, v, grid: LatLonGrid | None = None):
+def advection(scalar, u, v, grid=None):
     """Horizontal advection -V.grad(s) of a canonical DataArray, with units checked.
 
     Parameters
@@ -74,7 +65,7 @@ def advection(scalar, u, v, grid: LatLonGrid | None = None):
         Any scalar with a ``units`` attribute (temperature in K gives K s-1).
     u, v : xarray.DataArray (..., lat, lon)
         Eastward/northward wind with ``units`` of speed (converted to m s-1).
-    grid : LatLonGrid, optional
+    grid : LatLonGrid or ProjectedGrid, optional
         Geometry; by default built from the coordinates (:func:`parcelcast.grid.grid_for`).
 
     Returns
@@ -102,8 +93,8 @@ def advection(scalar, u, v, grid: LatLonGrid | None = None):
     result = xr.apply_ufunc(
         advection_array, scalar, winds[0], winds[1],
         kwargs={"grid": grid},
-        input_core_dims=[["lat", "lon"]] * 3,
-        output_core_dims=[["lat", "lon"]],
+        input_core_dims=[list(grid.dims)] * 3,
+        output_core_dims=[list(grid.dims)],
         dask="parallelized",
         output_dtypes=[np.float64],
     )

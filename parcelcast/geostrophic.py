@@ -11,24 +11,24 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.grid.latlon import LatLonGrid
-
 #: Half-width (degrees) of the band around the equator where geostrophic winds are masked.
 #: Common practice: geostrophic balance is a poor description equatorward of about 10-15 deg.
 EQUATORIAL_BAND_DEG = 10.0
 
 
-def geostrophic_wind_array(geopotential, grid: LatLonGrid, band_deg: float = EQUATORIAL_BAND_DEG):
-    """(u_g, v_g) in m s-1 from geopotential (m2 s-2) of shape (..., ny, nx)."""
+def geostrophic_wind_array(geopotential, grid, band_deg: float = EQUATORIAL_BAND_DEG):
+    """(u_g, v_g) in m s-1 (earth-relative) from geopotential (m2 s-2) of shape (..., ny, nx)
+    on any grid (lat-lon or projected)."""
     phi = np.asarray(geopotential, dtype=np.float64)
     f = grid.coriolis()
-    inv_f = np.where(np.abs(grid.lat) >= band_deg, 1.0 / np.where(f == 0, np.nan, f), np.nan)
-    u_g = -grid.ddy(phi) * inv_f[:, None]
-    v_g = grid.ddx(phi) * inv_f[:, None]
+    inv_f = np.where(np.abs(grid.latitude_field()) >= band_deg, 1.0 / np.where(f == 0, np.nan, f),
+                     np.nan)
+    u_g = -grid.ddy(phi) * inv_f
+    v_g = grid.ddx(phi) * inv_f
     return u_g, v_g
 
 
-def geostrophic_wind(ds, grid: LatLonGrid | None = None, band_deg: float = EQUATORIAL_BAND_DEG):
+def geostrophic_wind(ds, grid=None, band_deg: float = EQUATORIAL_BAND_DEG):
     """Geostrophic wind DataArrays (u_g, v_g) from a canonical dataset's ``geopotential``.
 
     Returns
@@ -52,8 +52,8 @@ def geostrophic_wind(ds, grid: LatLonGrid | None = None, band_deg: float = EQUAT
     u_g, v_g = xr.apply_ufunc(
         geostrophic_wind_array, phi,
         kwargs={"grid": grid, "band_deg": band_deg},
-        input_core_dims=[["lat", "lon"]],
-        output_core_dims=[["lat", "lon"], ["lat", "lon"]],
+        input_core_dims=[list(grid.dims)],
+        output_core_dims=[list(grid.dims), list(grid.dims)],
         dask="parallelized", output_dtypes=[np.float64, np.float64],
     )
     note = f"geostrophic wind from geopotential; NaN within {band_deg:g} deg of the equator"

@@ -12,47 +12,28 @@ from parcelcast.constants import EARTH_RADIUS
 from parcelcast.errors import SelectionError
 
 
-def _bracket(coord: np.ndarray, x: float, periodic: bool = False):
-    """Indices (i0, i1) and weight of i1 for ``x`` inside ascending ``coord``."""
-    if periodic:
-        n = coord.size
-        span = 360.0
-        rel = np.mod(x - coord[0], span)
-        steps = np.append(np.diff(coord), coord[0] + span - coord[-1])
-        edges = np.concatenate([[0.0], np.cumsum(steps)])
-        i0 = int(np.searchsorted(edges, rel, side="right") - 1)
-        i0 = min(i0, n - 1)
-        w = (rel - edges[i0]) / steps[i0]
-        return i0, (i0 + 1) % n, float(w)
-    i0 = int(np.searchsorted(coord, x, side="right") - 1)
-    i0 = min(max(i0, 0), coord.size - 2)
-    w = (x - coord[i0]) / (coord[i0 + 1] - coord[i0])
-    return i0, i0 + 1, float(w)
-
-
 def value_at(da, lat: float, lon: float, grid=None):
-    """Bilinear value of ``da`` (..., lat, lon) at one point; leading dims kept.
+    """Bilinear value of ``da`` (..., horizontal dims) at one point; leading dims kept.
 
-    Raises :class:`SelectionError` (listing the grid's extent) for a point outside the grid.
+    Bilinear in latitude/longitude on lat-lon grids, in projection x/y on projected
+    grids.  Raises :class:`SelectionError` (stating the grid's extent) for a point
+    outside the grid.
     """
     from parcelcast.grid import grid_for
 
     grid = grid if grid is not None else grid_for(da)
-    if not grid.contains(lat, lon):
-        raise SelectionError(
-            "point", f"{lat:g},{lon:g}",
-            f"latitudes {grid.lat[0]:g}..{grid.lat[-1]:g}, longitudes "
-            + ("all (global grid)" if grid.periodic_lon else f"{grid.lon[0]:g}..{grid.lon[-1]:g}"),
-        )
-    j0, j1, wy = _bracket(grid.lat, lat)
-    x = float(grid.lon_in_grid(lon)) if not grid.periodic_lon else lon
-    i0, i1, wx = _bracket(grid.lon, x, grid.periodic_lon)
-    corners = da.isel(lat=[j0, j1], lon=[i0, i1])
+    corners = grid.bilinear(lat, lon)
+    if corners is None:
+        raise SelectionError("point", f"{lat:g},{lon:g}", grid.extent_text())
+    (j0, j1, wy), (i0, i1, wx) = corners
+    ydim, xdim = grid.dims
     import xarray as xr
 
-    wlat = xr.DataArray([1 - wy, wy], dims="lat")
-    wlon = xr.DataArray([1 - wx, wx], dims="lon")
-    out = (corners.drop_vars(["lat", "lon"]) * wlat * wlon).sum(["lat", "lon"], skipna=False)
+    box = da.isel({ydim: [j0, j1], xdim: [i0, i1]})
+    box = box.drop_vars([c for c in box.coords if set(box[c].dims) & {ydim, xdim}])
+    wlat = xr.DataArray([1 - wy, wy], dims=ydim)
+    wlon = xr.DataArray([1 - wx, wx], dims=xdim)
+    out = (box * wlat * wlon).sum([ydim, xdim], skipna=False)
     out.attrs = dict(da.attrs)
     return out.assign_coords(lat=lat, lon=lon)
 
@@ -68,7 +49,7 @@ def great_circle_km(lat1, lon1, lat2, lon2):
 
 def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
               half_width_deg: float | None = None):
-    """Area-weighted (cos lat) mean over a radius or a lat-lon box around a point.
+    """Area-weighted mean over a radius or a lat-lon box around a point (NaN points skipped).
 
     Returns
     -------
@@ -78,7 +59,10 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
     """
     if (radius_km is None) == (half_width_deg is None):
         raise ValueError("give exactly one of radius_km or half_width_deg")
-    lat2d, lon2d = np.meshgrid(da["lat"].values, da["lon"].values, indexing="ij")
+    from parcelcast.grid import grid_for
+
+    grid = grid_for(da)
+    lat2d, lon2d = grid.latitude_field(), grid.longitude_field()
     if radius_km is not None:
         inside = great_circle_km(lat, lon, lat2d, lon2d) <= radius_km
         what = f"radius {radius_km:g} km"
@@ -90,12 +74,12 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
         raise SelectionError("area", f"{what} around {lat:g},{lon:g}", "no grid point inside it")
     import xarray as xr
 
-    weights = xr.DataArray(np.where(inside, np.cos(np.deg2rad(lat2d)), 0.0), dims=("lat", "lon"))
+    weights = xr.DataArray(np.where(inside, grid.area_weights(), 0.0), dims=grid.dims)
     valid = da.notnull()
-    total = (da.fillna(0.0) * weights).sum(["lat", "lon"])
-    norm = (weights * valid).sum(["lat", "lon"])
+    total = (da.where(valid, 0.0) * weights).sum(list(grid.dims))  # NaN points get no weight
+    norm = (weights * valid).sum(list(grid.dims))
     mean = total / norm.where(norm > 0)
     mean.attrs = dict(da.attrs)
-    mean.attrs["cell_methods"] = f"area: mean ({what}, cos-latitude weights, NaN skipped)"
+    mean.attrs["cell_methods"] = f"area: mean ({what}, cell-area weights, NaN skipped)"
     missing = int((~valid & (weights > 0)).sum()) if da.ndim else 0
     return mean, {"points": int(inside.sum()), "missing": missing}

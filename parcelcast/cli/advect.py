@@ -111,12 +111,20 @@ def field_summary(fields) -> dict:
         jmin, imin = np.unravel_index(np.nanargmin(values), values.shape)
         out.update({
             "advection_max_K_per_h": json_number(values[jmax, imax], 4),
-            "max_at": [float(adv["lat"][jmax]), float(adv["lon"][imax])],
+            "max_at": _lat_lon_of(adv, jmax, imax),
             "advection_min_K_per_h": json_number(values[jmin, imin], 4),
-            "min_at": [float(adv["lat"][jmin]), float(adv["lon"][imin])],
+            "min_at": _lat_lon_of(adv, jmin, imin),
             "advection_mean_abs_K_per_h": json_number(np.nanmean(np.abs(values)), 4),
         })
     return out
+
+
+def _lat_lon_of(field, j: int, i: int) -> list[float]:
+    """Latitude and longitude of grid point (j, i) on a lat-lon or projected grid."""
+    lat, lon = field["lat"].values, field["lon"].values
+    if lat.ndim == 2:
+        return [float(lat[j, i]), float(lon[j, i])]
+    return [float(lat[j]), float(lon[i])]
 
 
 def write_fields(fields, path) -> None:
@@ -124,6 +132,12 @@ def write_fields(fields, path) -> None:
     from parcelcast.io.atomic import atomic_path
 
     out = fields.copy()
+    if "crs" in out.coords:  # projected grid: a CF grid-mapping variable (CF 1.10, section 5.6)
+        import pyproj
+
+        out["crs"].attrs.update(pyproj.CRS.from_wkt(out["crs"].attrs["crs_wkt"]).to_cf())
+        for name in out.data_vars:
+            out[name].attrs["grid_mapping"] = "crs"
     out.attrs["Conventions"] = "CF-1.10"
     out.attrs["title"] = "parcelcast temperature advection"
     out.attrs["comment"] = "Guidance, not an official forecast."
@@ -142,8 +156,8 @@ def print_text(summary: dict) -> None:
             f"  advection        {_fmt(summary['advection_K_per_h'], 'K/h')}  (positive = warm)",
         ]
     else:
-        for key, label in (("advection_max_K_per_h", "strongest warm"),
-                           ("advection_min_K_per_h", "strongest cold"),
+        for key, label in (("advection_max_K_per_h", "maximum"),
+                           ("advection_min_K_per_h", "minimum"),
                            ("advection_mean_abs_K_per_h", "mean |advection|")):
             if key in summary:
                 lines.append(f"  {label:<17}{_fmt(summary[key], 'K/h')}")

@@ -67,9 +67,47 @@ class LatLonGrid:
         factor[away] = 1.0 / (self.radius * coslat[away])
         object.__setattr__(self, "_inv_dx_factor", factor)
 
+    #: names of the two horizontal dimensions in the canonical dataset
+    dims = ("lat", "lon")
+
     @property
     def shape(self) -> tuple[int, int]:
         return (self.lat.size, self.lon.size)
+
+    def latitude_field(self) -> np.ndarray:
+        """Latitude (degrees north) of every grid point, shape (ny, nx)."""
+        return np.broadcast_to(self.lat[:, None], self.shape)
+
+    def longitude_field(self) -> np.ndarray:
+        """Longitude (degrees east) of every grid point, shape (ny, nx)."""
+        return np.broadcast_to(self.lon[None, :], self.shape)
+
+    def area_weights(self) -> np.ndarray:
+        """Relative area of each grid cell, cos(lat), shape (ny, nx)."""
+        return np.broadcast_to(np.cos(np.deg2rad(self.lat))[:, None], self.shape)
+
+    def fill_advection(self, s, u, v, out) -> None:
+        """out[k] = -(u ds/dx + v ds/dy) for arrays (n, ny, nx), C-contiguous float64."""
+        from parcelcast.grid._advection_kernel import advect_fields
+
+        advect_fields(s, u, v, self._x.index, self._x.weight, self._y.index, self._y.weight,
+                      self._inv_dx_factor, 1.0 / self.radius, out)
+
+    def bilinear(self, lat: float, lon: float):
+        """Corner indices and weights ((j0, j1, wy), (i0, i1, wx)) for a point; None if outside."""
+        if not self.contains(lat, lon):
+            return None
+        j0, j1, wy = _bracket(self.lat, lat)
+        if self.periodic_lon:
+            i0, i1, wx = _bracket_periodic(self.lon, lon)
+        else:
+            i0, i1, wx = _bracket(self.lon, float(self.lon_in_grid(lon)))
+        return (j0, j1, wy), (i0, i1, wx)
+
+    def extent_text(self) -> str:
+        """The grid's extent in words, for error messages."""
+        lons = "all (global grid)" if self.periodic_lon else f"{self.lon[0]:g}..{self.lon[-1]:g}"
+        return f"latitudes {self.lat[0]:g}..{self.lat[-1]:g}, longitudes {lons}"
 
     @property
     def has_pole_rows(self) -> bool:
@@ -84,10 +122,8 @@ class LatLonGrid:
         return self._y.apply(f, axis=-2) * (1.0 / self.radius)
 
     def coriolis(self) -> np.ndarray:
-        """Coriolis parameter f = 2 Omega sin(lat) (s-1), shape (ny,)."""
-        from parcelcast.constants import EARTH_ANGULAR_VELOCITY
-
-        return 2.0 * EARTH_ANGULAR_VELOCITY * np.sin(np.deg2rad(self.lat))
+        """Coriolis parameter f = 2 Omega sin(lat) (s-1), shape (ny, nx)."""
+        return coriolis_parameter(self.latitude_field())
 
     def contains(self, lat: float, lon: float) -> bool:
         """True if the point lies inside the grid (longitude taken modulo 360)."""
@@ -101,20 +137,44 @@ class LatLonGrid:
         """Express longitudes in the grid's own range (start at ``lon[0]``)."""
         return self.lon[0] + np.mod(np.asarray(lon, dtype=np.float64) - self.lon[0], 360.0)
 
-    def x_stencil(self) -> Stencil:
-        return self._x
-
-    def y_stencil(self) -> Stencil:
-        return self._y
-
-    def inv_dx_factor(self) -> np.ndarray:
-        """1 / (a cos lat) per row (m-1 per radian of longitude), NaN on pole rows."""
-        return self._inv_dx_factor
 
 
-def grid_for(ds, periodic_lon: bool | None = None) -> LatLonGrid:
-    """Geometry of a canonical dataset; ``periodic_lon`` None means: from the coordinates."""
+def coriolis_parameter(lat_deg) -> np.ndarray:
+    """f = 2 Omega sin(lat) (s-1) for latitudes in degrees."""
+    from parcelcast.constants import EARTH_ANGULAR_VELOCITY
+
+    return 2.0 * EARTH_ANGULAR_VELOCITY * np.sin(np.deg2rad(np.asarray(lat_deg, dtype=np.float64)))
+
+
+def _bracket(coord: np.ndarray, x: float):
+    """(i0, i1, weight of i1) for ``x`` inside ascending ``coord`` (linear interpolation)."""
+    i0 = int(np.searchsorted(coord, x, side="right") - 1)
+    i0 = min(max(i0, 0), coord.size - 2)
+    return i0, i0 + 1, float((x - coord[i0]) / (coord[i0 + 1] - coord[i0]))
+
+
+def _bracket_periodic(lon: np.ndarray, x: float):
+    """As :func:`_bracket` on a longitude circle (the last point neighbours the first)."""
+    n = lon.size
+    rel = np.mod(x - lon[0], 360.0)
+    steps = np.append(np.diff(lon), lon[0] + 360.0 - lon[-1])
+    edges = np.concatenate([[0.0], np.cumsum(steps)])
+    i0 = min(int(np.searchsorted(edges, rel, side="right") - 1), n - 1)
+    return i0, (i0 + 1) % n, float((rel - edges[i0]) / steps[i0])
+
+
+def grid_for(ds, periodic_lon: bool | None = None):
+    """Geometry of a canonical dataset: a :class:`LatLonGrid`, or a
+    :class:`~parcelcast.grid.projected.ProjectedGrid` for dims ``y, x`` with a CRS.
+
+    ``periodic_lon`` None means: from the coordinates (lat-lon grids only).
+    """
     from parcelcast.io.coords import longitude_order
+
+    if "x" in ds.dims and "y" in ds.dims:
+        from parcelcast.grid.projected import ProjectedGrid
+
+        return ProjectedGrid.from_dataset(ds)
 
     lon = np.asarray(ds["lon"].values, dtype=np.float64)
     _, _, is_global = longitude_order(lon)

@@ -147,8 +147,10 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
         from parcelcast.io.grib import open_grib
 
         groups = open_grib(path)
-        upper = [coordinates.standardise(g, path) for g in groups.upper]
-        single = [coordinates.standardise(g, path) for g in groups.single]
+        crs = groups.crs()
+        upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
+        single = [coordinates.standardise(g, path, crs) for g in groups.single]
+        grid_relative = groups.scan.winds_grid_relative
         if groups.scan.damaged:
             damaged = (
                 f"{groups.scan.decoded} GRIB message(s) decoded, {groups.scan.failed} could not be "
@@ -171,12 +173,14 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
         std = coordinates.standardise(raw, path)
         upper = [std]
         single = [std]
+        grid_relative = None  # NetCDF: declared by each wind's standard_name
     raw_names = sorted({n for part in upper + single for n in part.data_vars})
-    found = {}
+    found, raw_vars = {}, {}
     for role_name in wanted:
         role = ROLES[role_name]
         var = _find_role(role, upper if role.on_levels else single, overrides, path)
         if var is not None:
+            raw_vars[role_name] = var
             found[role_name] = _to_canonical(var, role, path)
     for role_name, name in overrides.items():
         if role_name in wanted and role_name not in found:
@@ -187,11 +191,52 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
                                     hint="no known quantity was recognised")
     ds = xr.Dataset(found)
     ds = coordinates.normalise(ds, path)
+    if "x" in ds.dims:
+        ds = _winds_to_earth(ds, raw_vars, grid_relative, path)
     for name in ds.data_vars:
         _check_plausible(ds[name], name, path)
     ds.attrs["raw_variables"] = ",".join(raw_names)
     if damaged:
         ds.attrs["damaged"] = damaged
+    return ds
+
+
+def _winds_to_earth(ds: xr.Dataset, raw_vars: dict, grib_grid_relative, path: Path) -> xr.Dataset:
+    """On a projected grid, turn grid-relative winds into east/north components.
+
+    Whether winds are grid-relative must be declared: CF ``grid_eastward_wind`` /
+    ``grid_northward_wind`` (or ``eastward_wind``/``northward_wind`` for earth-relative),
+    or the GRIB component flag.  Undeclared winds are refused, never guessed.
+    """
+    winds = [r for r in ("u", "v") if r in ds.data_vars]
+    if not winds:
+        return ds
+    if len(winds) == 1:
+        raise IncompleteInputError(f"{path}: only '{winds[0]}' of the wind was found; on a "
+                                   "projected grid both components are needed to turn them east/north")
+    if grib_grid_relative is not None:
+        relative = grib_grid_relative
+    else:
+        names = {raw_vars[r].attrs.get("standard_name") for r in winds}
+        if names <= {"grid_eastward_wind", "grid_northward_wind"}:
+            relative = True
+        elif names <= {"eastward_wind", "northward_wind"}:
+            relative = False
+        else:
+            raise ParcelcastError(
+                f"{path}: winds on a projected grid must say whether they are relative to the grid "
+                "or to east/north: give them the CF standard_name grid_eastward_wind/"
+                "grid_northward_wind or eastward_wind/northward_wind"
+            )
+    if not relative:
+        return ds
+    from parcelcast.grid.projected import ProjectedGrid
+
+    u_east, v_north = ProjectedGrid.from_dataset(ds).winds_to_earth(ds["u"], ds["v"])
+    for name, value in (("u", u_east), ("v", v_north)):
+        value.attrs = dict(ds[name].attrs)
+        value.attrs["comment"] = "rotated from grid-relative to east/north components"
+        ds[name] = value
     return ds
 
 

@@ -37,8 +37,12 @@ def _find_coord(ds: xr.Dataset, role: str) -> str | None:
     return None
 
 
-def standardise(raw: xr.Dataset, path: Path) -> xr.Dataset:
-    """Rename and convert the coordinates of one raw dataset (no data values touched)."""
+def standardise(raw: xr.Dataset, path: Path, crs=None) -> xr.Dataset:
+    """Rename and convert the coordinates of one raw dataset (no data values touched).
+
+    ``crs`` (a ``pyproj.CRS``) declares the projection of a GRIB grid; NetCDF files
+    declare theirs with a CF ``grid_mapping`` variable.
+    """
     ds = raw
     lat = _find_coord(ds, "lat")
     lon = _find_coord(ds, "lon")
@@ -47,18 +51,73 @@ def standardise(raw: xr.Dataset, path: Path) -> xr.Dataset:
             f"{path}: latitude/longitude coordinates not found; coordinates present: "
             f"{', '.join(map(str, ds.coords)) or '(none)'}"
         )
-    if ds[lat].ndim != 1 or ds[lon].ndim != 1:
-        raise GridError(
-            f"{path}: two-dimensional latitude/longitude (a map-projected grid) is not supported "
-            "yet; provide the analysis on a regular latitude-longitude grid"
-        )
-    ds = ds.rename({lat: "lat", lon: "lon"})
+    if ds[lat].ndim == 2 and ds[lon].ndim == 2:
+        ds = _standardise_projected(ds, lat, lon, path, crs)
+    elif ds[lat].ndim != 1 or ds[lon].ndim != 1:
+        raise GridError(f"{path}: latitude and longitude must both be 1-D (a lat-lon grid) or both "
+                        "2-D (a map-projected grid)")
+    else:
+        ds = ds.rename({lat: "lat", lon: "lon"})
     ds = _standardise_level(ds, path)
     ds = _standardise_time(ds, path)
     ds = _standardise_member(ds)
-    keep = set(_CANONICAL_ORDER)
+    keep = set(_CANONICAL_ORDER) | {"x", "y", "crs"}
     extra = [c for c in ds.coords if c not in keep and c not in ds.dims]
     return ds.drop_vars(extra)
+
+
+def _standardise_projected(ds: xr.Dataset, lat: str, lon: str, path: Path, crs) -> xr.Dataset:
+    """A map-projected grid: dims ``y, x`` (m), 2-D ``lat``/``lon`` and the CRS as WKT."""
+    import pyproj
+
+    ydim, xdim = ds[lat].dims
+    if crs is None:
+        crs = _cf_crs(ds, path)
+    ds = ds.rename({lat: "lat", lon: "lon"})
+    if ydim != "y" or xdim != "x":
+        ds = ds.rename({ydim: "y", xdim: "x"})
+    to_map = pyproj.Transformer.from_crs(crs.geodetic_crs, crs, always_xy=True)
+    px, py = to_map.transform(ds["lon"].values, ds["lat"].values)
+    coords = {}
+    for dim, projected, along in (("x", px, 0), ("y", py, 1)):
+        # x is constant down each column (mean over axis 0), y along each row (axis 1)
+        if dim in ds.coords and ds[dim].attrs.get("units"):
+            values = convert(ds[dim].values, ds[dim].attrs["units"], "height",
+                             f"projection coordinate {dim}", str(path))
+        else:  # GRIB: no x/y values in the file; they follow from the declared projection
+            values = projected.mean(axis=along)
+        expected = values[None, :] if dim == "x" else values[:, None]
+        spread = float(np.nanmax(np.abs(projected - expected)))
+        step = float(np.nanmedian(np.abs(np.diff(values))))
+        if not spread < 0.01 * step:
+            raise GridError(
+                f"{path}: the 2-D latitude/longitude do not match the declared projection "
+                f"({crs.name}): {dim} differs by up to {spread:.0f} m, grid step {step:.0f} m"
+            )
+        coords[dim] = (dim, values,
+                       {"units": "m", "standard_name": f"projection_{dim}_coordinate", "axis": dim.upper()})
+    # the projection travels as a scalar coordinate, so every DataArray taken from the
+    # dataset still knows its grid (CF grid-mapping variable, section 5.6)
+    coords["crs"] = ((), 0, {"crs_wkt": crs.to_wkt(), "long_name": "map projection"})
+    return ds.assign_coords(**coords)
+
+
+def _cf_crs(ds: xr.Dataset, path: Path):
+    """The CRS named by the CF ``grid_mapping`` attribute of the data variables."""
+    import pyproj
+
+    names = {v.attrs.get("grid_mapping") for v in ds.data_vars.values()} - {None}
+    if not names:
+        raise GridError(f"{path}: 2-D latitude/longitude but no CF grid_mapping attribute: "
+                        "the projection must be declared (CF conventions, section 5.6)")
+    name = sorted(names)[0].split(":")[0].strip()
+    if name not in ds.variables:
+        raise GridError(f"{path}: grid_mapping '{name}' names no variable in the file")
+    try:
+        return pyproj.CRS.from_cf(dict(ds[name].attrs))
+    except Exception as exc:
+        raise GridError(f"{path}: grid_mapping '{name}' is not a projection pyproj understands: "
+                        f"{exc}") from None
 
 
 def _standardise_level(ds: xr.Dataset, path: Path) -> xr.Dataset:
@@ -138,7 +197,30 @@ def _standardise_member(ds: xr.Dataset) -> xr.Dataset:
 
 
 def normalise(ds: xr.Dataset, path: Path) -> xr.Dataset:
-    """Order coordinates: lat ascending, lon contiguous ascending, level descending, time ascending."""
+    """Order coordinates: lat ascending, lon contiguous ascending (projected grids: y and x
+    ascending), level descending, time ascending."""
+    if "x" in ds.dims and "y" in ds.dims:
+        ds = ds.sortby(["y", "x"])
+    else:
+        ds = _normalise_lat_lon(ds, path)
+    if "level" in ds.dims:
+        ds = ds.sortby("level", ascending=False)
+    if "time" in ds.dims:
+        ds = ds.sortby("time")
+        ds["time"].attrs = {"standard_name": "time", "long_name": "valid time (UTC)"}
+    horizontal = ("y", "x") if "x" in ds.dims else ("lat", "lon")
+    canonical = ("member", "time", "level", *horizontal)
+    order = [d for d in ds.dims if d not in canonical] + [d for d in canonical if d in ds.dims]
+    ds = ds.transpose(*order)
+    ds["lat"].attrs = {"units": "degrees_north", "standard_name": "latitude"}
+    ds["lon"].attrs = {"units": "degrees_east", "standard_name": "longitude"}
+    if "lat" in ds.dims:
+        ds["lat"].attrs["axis"] = "Y"
+        ds["lon"].attrs["axis"] = "X"
+    return ds
+
+
+def _normalise_lat_lon(ds: xr.Dataset, path: Path) -> xr.Dataset:
     lat = ds["lat"].values.astype(np.float64)
     if np.any(np.abs(lat) > 90.0 + 1e-6):
         raise ImplausibleValuesError("latitude", str(path), f"values {lat.min()} .. {lat.max()}")
@@ -146,15 +228,6 @@ def normalise(ds: xr.Dataset, path: Path) -> xr.Dataset:
         raise GridError(f"{path}: repeated latitudes")
     ds = ds.assign_coords(lat=("lat", lat)).sortby("lat")
     ds = _normalise_longitude(ds, path)
-    if "level" in ds.dims:
-        ds = ds.sortby("level", ascending=False)
-    if "time" in ds.dims:
-        ds = ds.sortby("time")
-        ds["time"].attrs = {"standard_name": "time", "long_name": "valid time (UTC)"}
-    order = [d for d in ds.dims if d not in _CANONICAL_ORDER] + [d for d in _CANONICAL_ORDER if d in ds.dims]
-    ds = ds.transpose(*order)
-    ds["lat"].attrs = {"units": "degrees_north", "standard_name": "latitude", "axis": "Y"}
-    ds["lon"].attrs = {"units": "degrees_east", "standard_name": "longitude", "axis": "X"}
     return ds
 
 

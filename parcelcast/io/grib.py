@@ -48,6 +48,8 @@ class GribScan:
     failed: int = 0
     problem: str = ""
     fields: list[str] = field(default_factory=list)
+    grid: dict = field(default_factory=dict)  # projection keys of the first projected message
+    winds_grid_relative: bool | None = None  # from the u/v messages' component flags
 
     @property
     def damaged(self) -> bool:
@@ -62,6 +64,61 @@ class GribScan:
         parts = [f"{name} ({', '.join(levels)})" for name, levels in groups.items()]
         more = f" and {len(parts) - limit} more" if len(parts) > limit else ""
         return "; ".join(parts[:limit]) + more
+
+
+#: GRIB grid types with a map projection, and the keys that define each
+_PROJECTION_KEYS = {
+    "lambert": ("LaDInDegrees", "LoVInDegrees", "Latin1InDegrees", "Latin2InDegrees"),
+    "polar_stereographic": ("LaDInDegrees", "orientationOfTheGridInDegrees", "projectionCentreFlag"),
+}
+
+
+def _note_projection(gid, name: str, scan: GribScan) -> None:
+    """Record the projection of the grid and whether u/v are relative to it."""
+    import eccodes
+
+    grid_type = eccodes.codes_get(gid, "gridType")
+    if grid_type not in _PROJECTION_KEYS:
+        return
+    if not scan.grid:
+        keys = {"gridType": grid_type}
+        for key in _PROJECTION_KEYS[grid_type]:
+            keys[key] = eccodes.codes_get(gid, key)
+        for key in ("radius", "earthMajorAxis", "earthMinorAxis"):
+            try:
+                keys[key] = eccodes.codes_get(gid, key, float)
+            except Exception:  # key absent for this shape of the Earth
+                pass
+        scan.grid = keys
+    if name in ("u", "v"):
+        # WMO GRIB2 flag table 3.3 (GRIB1 table 7), bit 5 (value 8): u/v relative to the grid
+        relative = bool(int(eccodes.codes_get(gid, "resolutionAndComponentFlags")) & 8)
+        scan.winds_grid_relative = relative if scan.winds_grid_relative is None else (
+            scan.winds_grid_relative or relative)
+
+
+def projection_crs(grid: dict):
+    """``pyproj.CRS`` of a GRIB projected grid from the keys recorded by the scan."""
+    import pyproj
+
+    if "radius" in grid:
+        earth = {"earth_radius": grid["radius"]}
+    elif "earthMajorAxis" in grid:
+        earth = {"semi_major_axis": grid["earthMajorAxis"], "semi_minor_axis": grid["earthMinorAxis"]}
+    else:
+        raise ValueError("the GRIB grid does not state the shape of the Earth")
+    if grid["gridType"] == "lambert":
+        cf = {"grid_mapping_name": "lambert_conformal_conic",
+              "standard_parallel": [grid["Latin1InDegrees"], grid["Latin2InDegrees"]],
+              "longitude_of_central_meridian": grid["LoVInDegrees"],
+              "latitude_of_projection_origin": grid["LaDInDegrees"]}
+    else:
+        south = int(grid["projectionCentreFlag"]) & 128  # bit 1 (WMO code table 3.5): south pole
+        cf = {"grid_mapping_name": "polar_stereographic",
+              "straight_vertical_longitude_from_pole": grid["orientationOfTheGridInDegrees"],
+              "standard_parallel": grid["LaDInDegrees"],
+              "latitude_of_projection_origin": -90.0 if south else 90.0}
+    return pyproj.CRS.from_cf({**cf, **earth})
 
 
 def _message_length(data: bytes, offset: int) -> int:
@@ -104,6 +161,7 @@ def scan_messages(path: Path) -> GribScan:
                     name = eccodes.codes_get(gid, "shortName")
                     ltype = eccodes.codes_get(gid, "typeOfLevel")
                     level = eccodes.codes_get(gid, "level")
+                    _note_projection(gid, name, scan)
                 finally:
                     eccodes.codes_release(gid)
                 scan.fields.append(f"{name}@{ltype}:{level}")
@@ -129,6 +187,10 @@ class GribGroups:
     upper: list  # list[xarray.Dataset]
     single: list  # list[xarray.Dataset]
     scan: GribScan
+
+    def crs(self):
+        """The projection of the file's grid (``pyproj.CRS``), or None for lat-lon grids."""
+        return projection_crs(self.scan.grid) if self.scan.grid else None
 
 
 def open_grib(path: Path) -> GribGroups:

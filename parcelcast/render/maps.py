@@ -42,7 +42,7 @@ def advection_map(level_fields, path=None, station=None, ax=None):
     values = adv.values
     if ax is None:
         fig = plt.figure(figsize=(10, 6.5))
-        ax = fig.add_subplot(1, 1, 1, projection=ccrs.PlateCarree(central_longitude=float(np.mean(lon))))
+        ax = fig.add_subplot(1, 1, 1, projection=_map_projection(level_fields, lon))
     else:
         fig = ax.figure
     finite = np.abs(values[np.isfinite(values)])
@@ -55,13 +55,19 @@ def advection_map(level_fields, path=None, station=None, ax=None):
                            levels=np.arange(-80, 50, 4), colors="0.25", linewidths=0.7,
                            transform=ccrs.PlateCarree())
     ax.clabel(isotherms, fmt="%d\u00b0C", fontsize=7)
-    step = max(1, int(round(max(len(lat), len(lon)) / 25)))
-    arrows = ax.quiver(lon[::step], lat[::step], level_fields["u"].values[::step, ::step],
+    step = max(1, int(round(max(values.shape) / 22)))
+    if lat.ndim == 1:  # lat-lon grid: 1-D coordinates
+        arrow_lon, arrow_lat = np.meshgrid(lon[::step], lat[::step])
+    else:  # projected grid: 2-D coordinates
+        arrow_lon, arrow_lat = lon[::step, ::step], lat[::step, ::step]
+    # winds are east/north components: transform_vectors on PlateCarree keeps them so
+    arrows = ax.quiver(arrow_lon, arrow_lat, level_fields["u"].values[::step, ::step],
                        level_fields["v"].values[::step, ::step], transform=ccrs.PlateCarree(),
                        color="0.15", width=0.0022, scale=900)
     ax.quiverkey(arrows, 0.9, -0.08, 20, "20 m/s", labelpos="E")
     ax.gridlines(draw_labels=True, linewidth=0.4, color="0.6", linestyle=":")
-    ax.set_extent([lon.min(), lon.max(), lat.min(), lat.max()], crs=ccrs.PlateCarree())
+    if lat.ndim == 1:
+        ax.set_extent([lon.min(), lon.max(), lat.min(), lat.max()], crs=ccrs.PlateCarree())
     if station is not None:
         ax.plot(station[1], station[0], marker="*", color="gold", markeredgecolor="black",
                 markersize=14, transform=ccrs.PlateCarree())
@@ -79,6 +85,34 @@ def advection_map(level_fields, path=None, station=None, ax=None):
             fig.savefig(tmp, format="png", dpi=110, bbox_inches="tight")
         plt.close(fig)
     return {"figure": fig, "filled": filled, "isotherms": isotherms, "arrows": arrows}
+
+
+def _map_projection(level_fields, lon):
+    """The analysis's own projection for a projected grid (so the grid is a rectangle),
+    else plate carree; cartopy classes built from the CF grid-mapping parameters."""
+    import cartopy.crs as ccrs
+
+    if "crs" in level_fields.coords and "crs_wkt" in level_fields["crs"].attrs:
+        import pyproj
+
+        cf = pyproj.CRS.from_wkt(level_fields["crs"].attrs["crs_wkt"]).to_cf()
+        globe = ccrs.Globe(semimajor_axis=cf.get("semi_major_axis"),
+                           semiminor_axis=cf.get("semi_minor_axis", cf.get("semi_major_axis")),
+                           ellipse=None)
+        name = cf.get("grid_mapping_name")
+        if name == "lambert_conformal_conic":
+            parallels = np.atleast_1d(cf["standard_parallel"]).tolist()
+            return ccrs.LambertConformal(central_longitude=cf["longitude_of_central_meridian"],
+                                         central_latitude=cf["latitude_of_projection_origin"],
+                                         standard_parallels=parallels, globe=globe)
+        if name == "polar_stereographic":
+            pole = cf.get("latitude_of_projection_origin",
+                          90.0 if cf.get("standard_parallel", 90.0) > 0 else -90.0)
+            return ccrs.Stereographic(
+                central_latitude=pole,
+                central_longitude=cf.get("straight_vertical_longitude_from_pole", 0.0),
+                true_scale_latitude=cf.get("standard_parallel"), globe=globe)
+    return ccrs.PlateCarree(central_longitude=float(np.mean(lon)))
 
 
 def _nice_ceiling(value: float) -> float:
