@@ -37,7 +37,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from parcelcast.constants import EARTH_RADIUS
 from parcelcast.trajectories.errors import StartPointError, TrajectoryError
 from parcelcast.trajectories.interpolate import (
     HIT_GROUND,
@@ -45,13 +44,13 @@ from parcelcast.trajectories.interpolate import (
     LEFT_TIME_RANGE,
     MISSING_DATA,
     OK,
+    CornerCache,
     GridGeometry,
     blend,
     locate,
     sample_column,
     sample_scalar,
-    sample_wind,
-    tangent,
+    wind_tendency,
 )
 from parcelcast.trajectories.schemes import SCHEMES
 from parcelcast.trajectories.sphere import to_lat_lon, to_unit_vector
@@ -282,14 +281,18 @@ def integrate(
     total_steps = 0
 
     state = {}
+    # corner values reused while parcels stay in a cell: valid for one set of active
+    # parcels (it only shrinks, so the count identifies it) and one analysis interval
+    corners = CornerCache()
 
     def set_interval(ta, tb):
         if steady:
             a = b = source.slice(0)
-            state.update(a=a, b=b, ta=ta - 1.0, tb=ta)  # wt irrelevant
+            state.update(a=a, b=b, ta=ta - 1.0, tb=ta, tag=0)  # wt irrelevant
         else:
             k = _interval(times, ta, tb)
-            state.update(a=source.slice(k), b=source.slice(k + 1), ta=times[k], tb=times[k + 1])
+            state.update(a=source.slice(k), b=source.slice(k + 1), ta=times[k], tb=times[k + 1],
+                         tag=k)
 
     def wt_of(t):
         if steady:
@@ -306,33 +309,32 @@ def integrate(
         def f(xx, zz, t):
             wt = wt_of(t)
             a, b = state["a"], state["b"]
-            la, lo = to_lat_lon(xx)
             code = np.zeros(xx.shape[0], dtype=np.int8)
             if mode == "isentropic":
+                la, lo = to_lat_lon(xx)
                 loc = locate(geom, la, lo, None, mem)
                 p, _below, above, bad = pressure_of(loc, zz, wt, la, lo, mem)
                 code[above] = LEFT_DOMAIN
                 code[bad] = MISSING_DATA
                 p = np.where(bad, levels[0], p)
-                loc = locate(geom, la, lo, p, mem)
             else:
-                loc = locate(geom, la, lo, zz if mode == "3d" else zz, mem)
-                if mode == "3d":
-                    code[loc.above] = LEFT_DOMAIN
-            code[loc.outside] = LEFT_DOMAIN
-            vel = blend(sample_wind(loc, a["u"], a["v"]), sample_wind(loc, b["u"], b["v"]), wt)
-            vel = tangent(xx, vel) / EARTH_RADIUS
+                p = zz
+            # locate + sample_wind/sample_scalar at both times + blend + tangent, compiled
+            vel, dz, outside, below, above = wind_tendency(
+                geom, xx, p, mem, a, b, wt, omega=mode == "3d",
+                cache=corners.use(xx.shape[0], state["tag"]))
             if mode == "3d":
-                dz = blend(sample_scalar(loc, a["omega"]), sample_scalar(loc, b["omega"]), wt)
-                if loc.below.any():
+                code[above] = LEFT_DOMAIN
+            code[outside] = LEFT_DOMAIN
+            if mode == "3d":
+                if below.any():
                     # below the lowest level: no downward motion into the ground
-                    dz = np.where(loc.below & (dz * sign > 0), 0.0, dz)
-            else:
-                dz = np.zeros(xx.shape[0])
+                    dz = np.where(below & (dz * sign > 0), 0.0, dz)
             nan = np.isnan(vel).any(axis=1) | np.isnan(dz)
-            code[nan & (code == 0)] = MISSING_DATA
-            vel[nan] = 0.0
-            dz = np.where(nan, 0.0, dz)
+            if nan.any():
+                code[nan & (code == 0)] = MISSING_DATA
+                vel[nan] = 0.0
+                dz = np.where(nan, 0.0, dz)
             return vel, dz, code
 
         return f

@@ -28,7 +28,7 @@ import numpy as np
 
 from parcelcast.constants import EARTH_RADIUS
 from parcelcast.trajectories.errors import TrajectoryGridError
-from parcelcast.trajectories.sphere import cartesian_to_wind, wind_to_cartesian
+from parcelcast.trajectories.sphere import cartesian_to_wind, to_lat_lon, wind_to_cartesian
 
 #: status codes shared by the kernel (order = precedence is not implied)
 OK, LEFT_DOMAIN, LEFT_TIME_RANGE, HIT_GROUND, MISSING_DATA = 0, 1, 2, 3, 4
@@ -264,9 +264,7 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
     wy = (lat - glat[j]) / (glat[j + 1] - glat[j])
     rel = np.mod(lon - glon[0], 360.0)
     if geom.periodic_lon:
-        ext = geom._cache.get("lonext")
-        if ext is None:
-            ext = geom._cache["lonext"] = np.append(glon - glon[0], 360.0)
+        ext = _lon_ext(geom)
         i0 = _index(geom, "lonp", ext[:-1], rel, glon[0] * 0.0, nx - 1)
         wx = (rel - ext[i0]) / (ext[i0 + 1] - ext[i0])
         i1 = i0 + 1
@@ -292,9 +290,7 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
     nl = geom.nlev
     if nl > 1 and pressure is not None:
         q = -np.log(pressure)
-        qlev = geom._cache.get("qlev")
-        if qlev is None:
-            qlev = geom._cache["qlev"] = -np.log(geom.levels)
+        qlev = _qlev(geom)
         # few levels: counting the interior levels at or under q beats a binary search
         k0 = (q[:, None] >= qlev[None, 1:-1]).sum(axis=1) if nl <= 32 else np.clip(
             np.searchsorted(qlev, q, side="right") - 1, 0, nl - 2)
@@ -310,17 +306,39 @@ def locate(geom: GridGeometry, lat, lon, pressure=None, member=None) -> Location
     return Location(hidx, wh, k0, k1, wk, m, trig, outside, below, above)
 
 
+def _uniform_spacing(geom, key, coord) -> float:
+    """Spacing of ``coord`` when uniform within 1e-9 degree, else 0 (cached by ``key``)."""
+    spacing = geom._cache.get(("uniform", key))
+    if spacing is None:
+        d = np.diff(coord)
+        spacing = float(d[0]) if d.size and np.allclose(d, d[0], rtol=0, atol=1e-9) else 0.0
+        geom._cache[("uniform", key)] = spacing
+    return spacing
+
+
+def _lon_ext(geom):
+    """Longitudes relative to the first one; with 360 appended on a periodic grid."""
+    ext = geom._cache.get("lonext")
+    if ext is None:
+        ext = geom._cache["lonext"] = np.append(geom.lon - geom.lon[0], 360.0)
+    return ext
+
+
+def _qlev(geom):
+    """``-ln(levels)`` (ascending), cached."""
+    qlev = geom._cache.get("qlev")
+    if qlev is None:
+        qlev = geom._cache["qlev"] = -np.log(geom.levels)
+    return qlev
+
+
 def _index(geom, key, coord, values, _unused, hi):
     """Index of the grid interval holding each value, clipped to [0, hi].
 
     Uniform coordinates (spacing equal within 1e-9 degree) use arithmetic; others a
     binary search.  ``coord`` is ascending.
     """
-    spacing = geom._cache.get(("uniform", key))
-    if spacing is None:
-        d = np.diff(coord)
-        spacing = float(d[0]) if d.size and np.allclose(d, d[0], rtol=0, atol=1e-9) else 0.0
-        geom._cache[("uniform", key)] = spacing
+    spacing = _uniform_spacing(geom, key, coord)
     if spacing > 0:
         idx = np.floor((values - coord[0]) / spacing).astype(np.intp)
         # guard against rounding at interval edges
@@ -408,3 +426,111 @@ def blend(a, b, wt: float):
     if wt >= 1.0:
         return b
     return a + wt * (b - a)
+
+
+def _kernel_geometry(geom: GridGeometry) -> tuple:
+    """Geometry arguments of the compiled kernel (``_kernel.wind_tendency``), cached."""
+    args = geom._cache.get("kernel")
+    if args is None:
+        if geom.periodic_lon:
+            ext = _lon_ext(geom)
+            coord, key = ext[:-1], "lonp"
+        else:
+            ext = coord = geom.lon - geom.lon[0]
+            key = "lonr"
+        lev = geom.levels if geom.levels is not None else np.ones(1)
+        sinlat, coslat, sinlon, coslon = geom._trig()
+        args = geom._cache["kernel"] = (
+            geom.lat, _uniform_spacing(geom, "lat", geom.lat), float(geom.lon[0]),
+            np.ascontiguousarray(coord), _uniform_spacing(geom, key, coord), ext,
+            geom.periodic_lon, -np.log(lev) if geom.levels is None else _qlev(geom), lev,
+            sinlat, coslat, sinlon, coslon)
+    return args
+
+
+_NO_FIELD = np.empty((0, 0, 0, 0))
+
+
+class CornerCache:
+    """Grid-corner values of the cell each parcel was last sampled in (compiled path).
+
+    One per run of :func:`wind_tendency` calls on the same parcels (same number, same
+    order) and the same pair of time slices; :meth:`use` starts afresh when either
+    changes (``tag`` names the pair, e.g. the analysis interval).
+    """
+
+    def __init__(self):
+        self.tag = None
+        self.key = np.full((2, 0), -1, dtype=np.int64)
+        self.val = np.empty((2, 0, 4, 2, 3))
+
+    def use(self, n: int, tag) -> CornerCache:
+        if tag != self.tag or self.key.shape[1] != n:
+            self.tag = tag
+            self.key = np.full((2, n), -1, dtype=np.int64)
+            self.val = np.empty((2, n, 4, 2, 3))
+        return self
+
+
+def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt: float,
+                  omega: bool = False, radius: float = EARTH_RADIUS,
+                  cache: CornerCache | None = None):
+    """Wind (and omega) at parcels, interpolated in space and time, in one compiled pass.
+
+    Equals, to round-off, ``locate`` at ``to_lat_lon(x)`` followed by
+    ``tangent(x, blend(sample_wind(loc, a...), sample_wind(loc, b...), wt)) / radius`` and
+    ``blend(sample_scalar(loc, a["omega"]), sample_scalar(loc, b["omega"]), wt)``; the slice
+    whose weight is 0 is not read.  The kernel is ``_kernel.wind_tendency`` (numba,
+    imported here on first use).
+
+    Parameters
+    ----------
+    geom : GridGeometry
+    x : ndarray (n, 3)
+        Unit position vectors.
+    pressure : ndarray (n,) or None
+        Pa; None (or a single-level grid): no vertical interpolation.
+    member : ndarray of int (n,)
+    a, b : dict
+        Prepared time slices (``"u"``, ``"v"``, and ``"omega"`` when ``omega``).
+    wt : float
+        Weight of ``b``.
+    cache : CornerCache, optional
+        Corner values kept between calls on the same parcels and slices (see
+        :class:`CornerCache`); without it every corner is read.
+
+    Returns
+    -------
+    vel : ndarray (n, 3)
+        Tangent velocity divided by ``radius`` (s-1).
+    dz : ndarray (n,)
+        Omega (Pa s-1), zeros unless ``omega``.
+    outside, below, above : ndarray (n,) bool
+        As the attributes of :class:`Location`.
+    """
+    from parcelcast.trajectories._kernel import wind_tendency as kernel
+
+    x = np.ascontiguousarray(x, dtype=np.float64)
+    n = x.shape[0]
+    use_p = pressure is not None and geom.nlev > 1
+    p = np.ascontiguousarray(pressure, dtype=np.float64) if use_p else np.ones(n)
+    lat, lon = to_lat_lon(x)
+    mem = np.ascontiguousarray(member, dtype=np.intp)
+    if cache is None:
+        cache = CornerCache().use(n, None)
+    elif cache.key.shape[1] != n:
+        raise ValueError("corner cache built for another number of parcels")
+
+    def field(d, name):
+        return np.ascontiguousarray(d[name], dtype=np.float64)
+
+    f = [field(a, "u"), field(a, "v"), field(a, "omega") if omega else _NO_FIELD,
+         field(b, "u"), field(b, "v"), field(b, "omega") if omega else _NO_FIELD]
+    vel = np.empty((n, 3))
+    dz = np.empty(n)
+    outside = np.empty(n, dtype=bool)
+    below = np.empty(n, dtype=bool)
+    above = np.empty(n, dtype=bool)
+    kernel(x, lat, lon, -np.log(p), p, mem, use_p, *_kernel_geometry(geom), *f, float(wt), float(radius),
+           cache.key, cache.val, vel, dz, outside, below, above)
+    return vel, dz, outside, below, above
