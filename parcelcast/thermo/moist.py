@@ -17,7 +17,7 @@ is conserved along our adiabats to within about 0.2 K from 1000 to 300 hPa (see 
 
 :func:`pseudoadiabat_lookup` gives the same curves (within 0.01 K) by bilinear
 interpolation in a table built once from :func:`pseudoadiabat`; the parcel kernel
-uses it because it needs no loop over levels.
+uses it (through the same compiled lookup) because it needs no integration per parcel.
 """
 
 from __future__ import annotations
@@ -193,59 +193,29 @@ def _table():
     return pseudoadiabat(_TABLE_T1000, 100000.0, np.exp(_TABLE_LNP), max_step=0.01)
 
 
-def _bracket_lnp(lnp):
-    f = (_TABLE_LNP[0] - lnp) / _TABLE_DLNP
-    ok = (f >= 0) & (f <= _TABLE_LNP.size - 1)
-    f = np.where(ok, f, 0.0)
-    i = np.clip(np.floor(f), 0, _TABLE_LNP.size - 2)
-    w = f - i
-    return i.astype(np.intp), w, ok
-
-
 def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     """Like :func:`pseudoadiabat`, by bilinear interpolation in a table of pseudo-adiabats.
 
     The table (built once per process, about 0.1 s) holds the curves through
     180-330 K at 1000 hPa every 0.2 K, on ln p steps of 0.01 from 1100 to 4 hPa,
     integrated by :func:`pseudoadiabat`.  Interpolation error is below 0.01 K
-    (tested); points outside the table give NaN.  No loop over levels, so it is fast
-    for one profile and for many columns alike.
+    (tested); points outside the table give NaN.  The lookup (bisection for the curve
+    through the start, then bilinear interpolation) is a compiled loop shared with the
+    parcel code (:mod:`parcelcast.thermo._parcel_kernel`, numba).
 
     Parameters and returns as in :func:`pseudoadiabat`.
     """
-    table = _table()
-    nt = _TABLE_T1000.size
+    from parcelcast.thermo._parcel_kernel import pseudoadiabat_lookup_columns
+
     t0 = np.asarray(temperature_start, dtype=np.float64)
     p0 = np.asarray(pressure_start, dtype=np.float64)
     plev = np.asarray(pressure, dtype=np.float64)
     shape = np.broadcast_shapes(t0.shape, p0.shape)
-    t0 = np.broadcast_to(t0, shape)
-    finite = np.isfinite(t0)
-    t0 = np.where(finite, t0, 250.0)
-    i0, w0, ok0 = _bracket_lnp(np.log(np.broadcast_to(p0, shape)))
-
-    def at(j, i, w):
-        return table[j, i] * (1 - w) + table[j, i + 1] * w
-
-    # bisection for the curve through (t0, p0): temperatures increase with the curve index
-    lo = np.zeros(shape, dtype=np.intp)
-    hi = np.full(shape, nt - 1, dtype=np.intp)
-    for _ in range(int(np.ceil(np.log2(nt))) + 1):
-        mid = (lo + hi) // 2
-        above = at(mid, i0, w0) > t0
-        hi = np.where(above, mid, hi)
-        lo = np.where(above, lo, mid)
-        if np.all(hi - lo <= 1):
-            break
-    t_lo, t_hi = at(lo, i0, w0), at(hi, i0, w0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        a = (t0 - t_lo) / (t_hi - t_lo)
-    inside = ok0 & (a >= -1e-9) & (a <= 1 + 1e-9) & finite
-    lnp = np.log(plev)
-    out_shape = shape + plev.shape[-1:]
-    lnp = np.broadcast_to(lnp, out_shape)
-    i, w, ok = _bracket_lnp(lnp)
-    j = lo[..., None]
-    aa = a[..., None]
-    out = (1 - aa) * at(j, i, w) + aa * at(j + 1, i, w)
-    return np.where(ok & inside[..., None], out, np.nan)
+    nlev = plev.shape[-1]
+    # fresh C-contiguous copies: one compiled signature whatever the caller passes (views, read-only arrays)
+    flat = lambda a: np.array(np.broadcast_to(a, shape), order="C").reshape(-1)  # noqa: E731
+    p2 = np.array(plev.reshape(1, nlev) if plev.ndim == 1 else np.broadcast_to(plev, shape + (nlev,)),
+                  order="C").reshape(-1, nlev)
+    out = np.empty((int(np.prod(shape)), nlev))
+    pseudoadiabat_lookup_columns(_table(), _TABLE_LNP[0], _TABLE_DLNP, flat(t0), flat(p0), p2, out)
+    return out.reshape(shape + (nlev,))
