@@ -58,6 +58,14 @@ from parcelcast.trajectories.sphere import to_lat_lon, to_unit_vector
 MODES = ("isobaric", "3d", "isentropic")
 
 
+def _abs_nanmax(a, axis=None):
+    """``nanmax(abs(a))`` without the temporary array (NaN only where all are NaN)."""
+    a = np.asarray(a)
+    if axis is None:
+        a = a.reshape(-1)
+    return np.fmax(np.fmax.reduce(a, axis=axis), -np.fmin.reduce(a, axis=axis))
+
+
 @dataclass
 class FieldSource:
     """Analysis times and a loader of prepared slices, for :func:`integrate`.
@@ -90,13 +98,15 @@ class FieldSource:
                 self._cache.pop(next(iter(self._cache)))
             data = self.loader(ti)
             u, v = data["u"], data["v"]
-            vmax = float(np.hypot(np.nanmax(np.abs(u)), np.nanmax(np.abs(v))))
+            vmax = float(np.hypot(_abs_nanmax(u), _abs_nanmax(v)))
             data["_vmax"] = vmax
             if "omega" in data and self.geometry.levels is not None:
                 levels = self.geometry.levels
-                om = np.abs(data["omega"])
-                finite = np.isfinite(om)
-                om = np.where(finite, om, 0.0).max(axis=(0, 2, 3)) / levels  # NaN levels: no limit
+                om = _abs_nanmax(data["omega"], axis=(0, 2, 3))
+                if not np.isfinite(om).all():  # NaN or infinite values: ignore them
+                    om = np.abs(data["omega"])
+                    om = np.where(np.isfinite(om), om, 0.0).max(axis=(0, 2, 3))
+                om = om / levels  # NaN levels: no limit
                 data["_omega_rate"] = float(om.max()) if om.size else 0.0
             self._cache[ti] = data
         return self._cache[ti]
