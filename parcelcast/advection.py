@@ -86,6 +86,12 @@ def advection(scalar, u, v, grid=None):
         from parcelcast.errors import UnitsError
 
         raise UnitsError(str(scalar.name or "scalar"), None, "any stated unit")
+    is_temperature = scalar.attrs.get("standard_name") in ("air_temperature", "virtual_temperature") \
+        or scalar.name in ("temperature", "near_surface_temperature", "layer_mean_temperature")
+    if is_temperature:  # any temperature unit: gradients are temperature differences, in K
+        zero, one = convert([0.0, 1.0], scalar_units, "temperature", str(scalar.name or "temperature"))
+        if one - zero != 1.0:
+            scalar = scalar * (one - zero)  # the slope of the conversion: 1 degF = 5/9 K
     winds = []
     for name, wind in (("u", u), ("v", v)):
         zero, one = convert([0.0, 1.0], wind.attrs.get("units"), "speed", f"wind component {name}")
@@ -99,8 +105,6 @@ def advection(scalar, u, v, grid=None):
         output_dtypes=[np.float64],
     )
     result = result.transpose(*[d for d in scalar.dims if d in result.dims])
-    is_temperature = scalar.attrs.get("standard_name") == "air_temperature" or scalar.name in (
-        "temperature", "near_surface_temperature", "layer_mean_temperature")
     if is_temperature:
         result.attrs = {
             "standard_name": "tendency_of_air_temperature_due_to_advection",

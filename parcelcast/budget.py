@@ -24,9 +24,9 @@ from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.constants import SECONDS_PER_HOUR
 from parcelcast.errors import SelectionError
 
-SECONDS_PER_HOUR = 3600.0
 
 
 # ------------------------------------------------------------------ time integration
@@ -64,8 +64,11 @@ def interpolation_weights(times, when) -> np.ndarray:
 
 
 def _check_window(ds, start, end) -> None:
-    times = ds["time"].values
     source = ds.attrs.get("source_files", "")
+    if "time" not in ds.dims:
+        raise SelectionError("window", f"{str(start)[:16]} to {str(end)[:16]} UTC",
+                             "nothing: the analysis has no time coordinate", source)
+    times = ds["time"].values
     if not np.datetime64(end, "ns") > np.datetime64(start, "ns"):
         raise SelectionError("window", f"{str(start)[:16]} to {str(end)[:16]}",
                              "a window whose end is after its start", source)
@@ -82,6 +85,17 @@ def _weighted(da, weights):
 
 
 # ------------------------------------------------------------------ the gridded parts
+WINDS = ("actual", "geostrophic")
+
+
+def check_wind(wind: str) -> None:
+    """Refuse a wind choice other than 'actual' or 'geostrophic' (nothing is assumed)."""
+    from parcelcast.errors import ParcelcastError
+
+    if wind not in WINDS:
+        raise ParcelcastError(f"wind {wind!r} is not known; choose one of: {', '.join(WINDS)}")
+
+
 def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     """The split as maps over the analysis area for the window [start, end].
 
@@ -97,6 +111,7 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     from parcelcast.io.analysis import require
     from parcelcast.selection import select_level
 
+    check_wind(wind)
     _check_window(ds, start, end)
     require(ds, "temperature", purpose="the trend split")
     temperature = select_level(ds, level_hpa)["temperature"]
@@ -150,6 +165,7 @@ def _vertical_term(ds, level_hpa: float):
         static_stability, ds["temperature"], ds["level"],
         input_core_dims=[["level"], ["level"]], output_core_dims=[["level"]],
         dask="parallelized", output_dtypes=[np.float64],
+        dask_gufunc_kwargs={"allow_rechunk": True},  # dT/dp needs whole columns
     ).transpose(*ds["temperature"].dims)
     term = select_level(xr.Dataset({"w": ds["omega"] * stability}), level_hpa)["w"]
     term.attrs = {"units": "K s-1", "long_name": "omega times static stability"}
@@ -162,46 +178,70 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     """The Eulerian split at a point (bilinear) or over a radius around it.
 
     ``station`` (a :class:`parcelcast.io.station.StationSeries`) replaces the analysed
-    observed change by the station's own; the residual then absorbs the difference.
-    Values are member means where the analysis has members (``*_members`` lists each).
+    observed change by the station's own; the residual then also holds the difference
+    between the station and the analysis level (said in ``residual_note``).
+    Values are member means where the analysis has members (``*_members_K`` lists each;
+    a missing member makes the mean missing).  ``point_observed_change_K`` (and its
+    members) is always the analysed change at the point itself, for the Lagrangian view.
     """
+    import xarray as xr
+
+    from parcelcast.sampling import value_at
+
     fields = split_fields(ds, level_hpa, start, end, wind)
     at, area = _at_station(fields, lat, lon, radius_km)
     parts = {name: at[name] for name in at.data_vars}
-    result = {"observed_source": "analysis"}
+    result = {"observed_source": "analysis",
+              "residual_note": "diabatic heating and errors"
+              + ("" if "vertical" in parts else ", and the vertical term (no omega)")}
+    point = value_at(fields["observed_change"], lat, lon)
+    result.update(_values("point_observed_change_K", point))
     if station is not None:
         observed = station.value_at(end) - station.value_at(start)
         result["observed_source"] = f"station series {station.source}"
         result["station_gaps"] = station.gap_text()
-        parts["observed_change"] = observed + 0.0 * parts["advective"]
+        result["residual_note"] += (", and the difference between the station series and the "
+                                    f"{level_hpa:g} hPa analysis")
+        parts["observed_change"] = xr.full_like(parts["advective"], observed)
         others = parts["advective"] + (parts["vertical"] if "vertical" in parts else 0.0)
         parts["residual"] = parts["observed_change"] - others
     for name, key in (("observed_change", "observed_change_K"), ("advective", "advective_K"),
                       ("vertical", "vertical_K"), ("residual", "residual_K")):
-        if name not in parts:
+        if name in parts:
+            result.update(_values(key, parts[name]))
+        else:
             result[key] = None
-            continue
-        value = parts[name]
-        if "member" in value.dims:
-            result[key.replace("_K", "_members_K")] = [float(x) for x in value.values]
-            value = value.mean("member")
-        result[key] = float(value)
     result["vertical_available"] = "vertical" in parts
     if area is not None:
         result["area"] = area
     return result
 
 
+def _values(key: str, value) -> dict:
+    """``{key: member mean}`` plus ``{key_members: [...]}`` when there are members."""
+    from parcelcast.selection import member_mean
+
+    out = {key: float(member_mean(value))}
+    if "member" in value.dims:
+        out[key.replace("_K", "_members_K")] = [float(x) for x in value.values]
+    return out
+
+
 def _at_station(fields, lat, lon, radius_km):
+    """The parts at the point, or their area means over one common set of grid points
+    (a point missing in any part is left out of every part, so the parts still add up)."""
     from parcelcast.sampling import area_mean, value_at
 
     if radius_km is None:
         return value_at(fields, lat, lon), None
     import xarray as xr
 
+    valid = None
+    for name in fields.data_vars:
+        valid = fields[name].notnull() if valid is None else valid & fields[name].notnull()
     means, info = {}, None
     for name in fields.data_vars:
-        means[name], info = area_mean(fields[name], lat, lon, radius_km=radius_km)
+        means[name], info = area_mean(fields[name].where(valid), lat, lon, radius_km=radius_km)
     return xr.Dataset(means), info
 
 
@@ -251,14 +291,11 @@ def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: 
                 radius_km: float | None = None, station=None, members: int = 5) -> dict:
     """Both views side by side, with their difference as a consistency measure."""
     euler = eulerian_split(ds, lat, lon, level_hpa, start, end, wind, radius_km, station)
-    # The Lagrangian split follows the first analysis member's unperturbed trajectory, so it is
-    # compared with that member's own observed change and advective part.
-    observed = euler["observed_change_K"]
-    eulerian_advective = euler["advective_K"]
-    if "observed_change_members_K" in euler and station is None:
-        observed = euler["observed_change_members_K"][0]
-    if "advective_members_K" in euler:
-        eulerian_advective = euler["advective_members_K"][0]
+    # The Lagrangian split follows the first analysis member's unperturbed trajectory from the
+    # point, so it uses that member's analysed change at the point itself (never a station
+    # series or an area mean, which are not what the parcel's temperature measures).
+    observed = euler.get("point_observed_change_members_K", [euler["point_observed_change_K"]])[0]
+    eulerian_advective = euler.get("advective_members_K", [euler["advective_K"]])[0]
     lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members)
     lagr["observed_change_K"] = observed
     difference = None
@@ -277,14 +314,12 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
     """
     from parcelcast.advection import advection_on_level
     from parcelcast.sampling import value_at
-    from parcelcast.selection import select_time
+    from parcelcast.selection import member_mean, select_time
     from parcelcast.trajectories import compute_trajectories
     from parcelcast.units import Q_
 
     now = ds["time"].values[-1]
-    here = value_at(advection_on_level(ds, level_hpa, now, wind), lat, lon)
-    if "member" in here.dims:
-        here = here.mean("member")
+    here = member_mean(value_at(advection_on_level(ds, level_hpa, now, wind), lat, lon))
     t_now = float(here["temperature"])
     adv_now = float(here["temperature_advection"]) * SECONDS_PER_HOUR
     latest = select_time(ds, now).expand_dims("time")
@@ -298,7 +333,7 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
         upstream = float(paths["temperature"].values[0, last]) if status == "ok" else None
         out.append({
             "lead_h": lead,
-            "valid": str(now + np.timedelta64(int(lead), "h"))[:16] + "Z",
+            "valid": str(now + np.timedelta64(int(round(lead * 60)), "m"))[:16] + "Z",
             "advective_extrapolation_K": t_now + adv_now * lead,
             "upstream_K": upstream,
             "upstream_status": status,

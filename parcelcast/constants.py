@@ -26,21 +26,13 @@ WATER_VAPOUR_GAS_CONSTANT = 461.5228
 #: Ratio of gas constants R_d / R_v (dimensionless), from the two values above.
 EPSILON = DRY_AIR_GAS_CONSTANT / WATER_VAPOUR_GAS_CONSTANT
 #: Specific heat of dry air at constant pressure (J kg-1 K-1). Bolton (1980) and
-#: most textbooks (e.g. Wallace & Hobbs 2006) use 1004-1005; 1004.0 matches kappa = 2/7.
+#: most textbooks (e.g. Wallace & Hobbs 2006) use 1004-1005.
 DRY_AIR_SPECIFIC_HEAT_P = 1004.0
-#: Poisson constant kappa = R_d / c_p (dimensionless). Bolton (1980) uses 0.2854.
+#: Poisson constant kappa = R_d / c_p (dimensionless) = 0.2859 from the two values above
+#: (Bolton 1980 uses 0.2854; 2/7 = 0.2857 for an ideal diatomic gas).
 KAPPA = DRY_AIR_GAS_CONSTANT / DRY_AIR_SPECIFIC_HEAT_P
 #: Reference pressure for potential temperature (Pa). WMO-No. 8: 1000 hPa.
 REFERENCE_PRESSURE = 100_000.0
 
-CONSTANT_UNITS = {
-    "EARTH_RADIUS": "m",
-    "EARTH_ANGULAR_VELOCITY": "rad/s",
-    "STANDARD_GRAVITY": "m/s**2",
-    "DRY_AIR_GAS_CONSTANT": "J/(kg*K)",
-    "WATER_VAPOUR_GAS_CONSTANT": "J/(kg*K)",
-    "EPSILON": "1",
-    "DRY_AIR_SPECIFIC_HEAT_P": "J/(kg*K)",
-    "KAPPA": "1",
-    "REFERENCE_PRESSURE": "Pa",
-}
+#: Seconds per hour: rates are K s-1 in arrays and files, K h-1 for people.
+SECONDS_PER_HOUR = 3600.0

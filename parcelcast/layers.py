@@ -16,17 +16,6 @@ import numpy as np
 from parcelcast.constants import DRY_AIR_GAS_CONSTANT
 
 
-def _level_index(ds, pressure_pa: float, source: str = "") -> int:
-    from parcelcast.errors import SelectionError
-
-    levels = ds["level"].values
-    hits = np.flatnonzero(np.isclose(levels, pressure_pa, rtol=0, atol=1.0))
-    if hits.size == 0:
-        raise SelectionError("pressure level", f"{pressure_pa / 100:g} hPa",
-                             ", ".join(f"{p / 100:g}" for p in levels) + " hPa", source)
-    return int(hits[0])
-
-
 def layer_mean_temperature(ds, bottom_pa: float, top_pa: float):
     """Layer-mean virtual temperature (K) between two levels from the geopotential thickness.
 
@@ -42,10 +31,11 @@ def layer_mean_temperature(ds, bottom_pa: float, top_pa: float):
     require(ds, "geopotential", purpose="the layer-mean temperature")
     if not bottom_pa > top_pa:
         raise ValueError("the bottom pressure must exceed the top pressure")
-    src = ds.attrs.get("source_files", "")
-    phi = ds["geopotential"]
-    thickness = (phi.isel(level=_level_index(ds, top_pa, src), drop=True)
-                 - phi.isel(level=_level_index(ds, bottom_pa, src), drop=True))
+    from parcelcast.selection import select_level
+
+    phi = ds[["geopotential"]]
+    thickness = (select_level(phi, top_pa / 100.0)["geopotential"].drop_vars("level")
+                 - select_level(phi, bottom_pa / 100.0)["geopotential"].drop_vars("level"))
     mean = thickness / (DRY_AIR_GAS_CONSTANT * np.log(bottom_pa / top_pa))
     mean.attrs = {
         "units": "K", "standard_name": "virtual_temperature",

@@ -33,7 +33,9 @@ from pathlib import Path
 
 import numpy as np
 
+from parcelcast.budget import check_wind
 from parcelcast.errors import InputFileError, ParcelcastError
+from parcelcast.times import parse_utc
 
 
 @dataclass
@@ -69,26 +71,19 @@ def read_case(path) -> Case:
             text = str(item).replace("${PARCELCAST_DATA}", data_dir)
             full = Path(text) if Path(text).is_absolute() else path.parent / text
             analyses.append(str(full))
-        start = _utc(window["start"])
-        end = _utc(window["end"])
+        start = parse_utc(window["start"], f"{path}: [window] start")
+        end = parse_utc(window["end"], f"{path}: [window] end")
+        wind = str(case.get("wind", "actual"))
+        check_wind(wind)
         return Case(title=str(case.get("title", path.stem)), analyses=analyses,
                     station_name=str(station.get("name", "station")), lat=float(station["lat"]),
                     lon=float(station["lon"]), start=start, end=end,
                     level_hpa=float(window.get("level_hPa", 850)),
-                    wind=str(case.get("wind", "actual")), members=int(case.get("members", 5)),
+                    wind=wind, members=int(case.get("members", 5)),
                     source=path)
     except KeyError as exc:
         raise ParcelcastError(f"{path}: missing key {exc} (see the case-file format in "
                               "parcelcast/review.py)") from None
-
-
-def _utc(value) -> np.datetime64:
-    import pandas as pd
-
-    stamp = pd.Timestamp(value)
-    if stamp.tzinfo is not None:
-        stamp = stamp.tz_convert("UTC").tz_localize(None)
-    return np.datetime64(stamp.to_datetime64(), "ns")
 
 
 def build_review(case: Case, ds=None) -> dict:

@@ -55,7 +55,8 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
     -------
     (xarray.DataArray, dict)
         The mean (leading dims kept) and ``{"points": n, "missing": m}`` with the
-        number of grid points in the area and how many of them were NaN (skipped).
+        number of grid points in the area and how many of them were NaN (skipped) at
+        any time or member.
     """
     if (radius_km is None) == (half_width_deg is None):
         raise ValueError("give exactly one of radius_km or half_width_deg")
@@ -81,5 +82,7 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
     mean = total / norm.where(norm > 0)
     mean.attrs = dict(da.attrs)
     mean.attrs["cell_methods"] = f"area: mean ({what}, cell-area weights, NaN skipped)"
-    missing = int((~valid & (weights > 0)).sum()) if da.ndim else 0
+    leading = [d for d in da.dims if d not in grid.dims]
+    missing_anywhere = (~valid).any(leading) if leading else ~valid
+    missing = int((missing_anywhere & (weights > 0)).sum())
     return mean, {"points": int(inside.sum()), "missing": missing}

@@ -50,3 +50,12 @@ def select_level(ds, level_hpa: float):
         raise SelectionError("pressure level", f"{level_hpa:g} hPa",
                              ", ".join(f"{p / 100:g}" for p in levels) + " hPa", _source(ds))
     return ds.isel(level=int(hit[0]))
+
+
+def member_mean(da):
+    """Mean over ensemble members; a member that is missing makes the mean missing.
+
+    (xarray's default would skip NaN members silently: missing values must stay missing.)
+    Without a member dimension the input is returned unchanged.
+    """
+    return da.mean("member", skipna=False) if "member" in da.dims else da

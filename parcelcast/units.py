@@ -21,7 +21,6 @@ from parcelcast.errors import UnitsError
 #: Expected dimensionality (pint notation) and the SI unit we convert to, per kind.
 QUANTITY_KINDS: dict[str, tuple[str, str]] = {
     "temperature": ("[temperature]", "K"),
-    "temperature_difference": ("[temperature]", "delta_degC"),
     "speed": ("[length] / [time]", "m/s"),
     "geopotential": ("[length] ** 2 / [time] ** 2", "m**2/s**2"),
     "height": ("[length]", "m"),

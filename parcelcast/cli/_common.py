@@ -23,19 +23,14 @@ def lat_lon(text: str) -> tuple[float, float]:
 
 
 def utc_time(text: str):
-    """Parse an ISO 8601 time; a time without a zone is UTC. Returns a naive UTC numpy datetime64."""
-    import numpy as np
-    import pandas as pd
+    """Parse an ISO 8601 time for argparse; a time without a zone is UTC (naive UTC datetime64)."""
+    from parcelcast.errors import ParcelcastError
+    from parcelcast.times import parse_utc
 
     try:
-        stamp = pd.Timestamp(text)
-    except (ValueError, TypeError):
-        raise argparse.ArgumentTypeError(
-            f"expected an ISO 8601 time such as 2017-01-01T12:00 (UTC unless a zone is given); got {text!r}"
-        ) from None
-    if stamp.tzinfo is not None:
-        stamp = stamp.tz_convert("UTC").tz_localize(None)
-    return np.datetime64(stamp.to_datetime64(), "ns")
+        return parse_utc(text)
+    except ParcelcastError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
 
 
 def variable_override(text: str) -> tuple[str, str]:

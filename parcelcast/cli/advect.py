@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 
+from parcelcast.constants import SECONDS_PER_HOUR
 from parcelcast.cli._common import (
     add_input_arguments,
     iso_utc,
@@ -12,8 +13,6 @@ from parcelcast.cli._common import (
     print_json,
     utc_time,
 )
-
-SECONDS_PER_HOUR = 3600.0
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -34,6 +33,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 def run(args) -> int:
     from parcelcast.advection import advection_on_level
+    from parcelcast.selection import member_mean
     from parcelcast.cli import DISCLAIMER
     from parcelcast.io.analysis import open_analysis
 
@@ -50,8 +50,7 @@ def run(args) -> int:
     if args.map:
         from parcelcast.render.maps import advection_map
 
-        advection_map(fields.mean("member") if "member" in fields.dims else fields,
-                      args.map, station=args.at)
+        advection_map(member_mean(fields), args.map, station=args.at)
     if args.json:
         print_json(summary)
     else:
@@ -71,6 +70,7 @@ def _base(fields) -> dict:
 def point_summary(fields, lat: float, lon: float) -> dict:
     """The JSON contract at a point: values are the member mean when members exist."""
     from parcelcast.sampling import value_at
+    from parcelcast.selection import member_mean
 
     at = value_at(fields, lat, lon)
     adv = at["temperature_advection"] * SECONDS_PER_HOUR
@@ -79,10 +79,10 @@ def point_summary(fields, lat: float, lon: float) -> dict:
     out.update({
         "lat": lat,
         "lon": lon,
-        "temperature_K": json_number(at["temperature"].mean("member") if has_members else at["temperature"], 3),
-        "u_m_s": json_number(at["u"].mean("member") if has_members else at["u"], 3),
-        "v_m_s": json_number(at["v"].mean("member") if has_members else at["v"], 3),
-        "advection_K_per_h": json_number(adv.mean("member") if has_members else adv, 4),
+        "temperature_K": json_number(member_mean(at["temperature"]), 3),
+        "u_m_s": json_number(member_mean(at["u"]), 3),
+        "v_m_s": json_number(member_mean(at["v"]), 3),
+        "advection_K_per_h": json_number(member_mean(adv), 4),
         "sign_convention": "advection = -V.grad T; positive = warm advection",
         "missing_points_in_field": fields.attrs["missing_points"],
     })
@@ -91,7 +91,7 @@ def point_summary(fields, lat: float, lon: float) -> dict:
             {"member": int(m), "advection_K_per_h": json_number(adv.sel(member=m), 4)}
             for m in at["member"].values
         ]
-        out["advection_spread_K_per_h"] = json_number(adv.std("member"), 4)
+        out["advection_spread_K_per_h"] = json_number(adv.std("member", skipna=False), 4)
     return out
 
 
@@ -99,9 +99,10 @@ def field_summary(fields) -> dict:
     """Whole-field statistics (K/h) and where the extremes are."""
     import numpy as np
 
+    from parcelcast.selection import member_mean
+
     adv = fields["temperature_advection"] * SECONDS_PER_HOUR
-    if "member" in adv.dims:
-        adv = adv.mean("member")
+    adv = member_mean(adv)
     out = _base(fields)
     values = adv.values
     finite = np.isfinite(values)

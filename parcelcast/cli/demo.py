@@ -18,6 +18,7 @@ def run(args) -> int:
     from parcelcast import demo
     from parcelcast.advection import advection_on_level
     from parcelcast.cli import DISCLAIMER
+    from parcelcast.constants import SECONDS_PER_HOUR
     from parcelcast.io.analysis import open_analysis
     from parcelcast.io.atomic import write_text
     from parcelcast.render.maps import advection_map
@@ -41,7 +42,7 @@ def run(args) -> int:
         _, heating = demo.diurnal_heating(seconds, 850.0)
         stamp = np.datetime_as_string(when, unit="m")
         values = (float(at["temperature"]), float(at["u"]), float(at["v"]),
-                  float(at["temperature_advection"]) * 3600.0, heating * 3600.0)
+                  float(at["temperature_advection"]) * SECONDS_PER_HOUR, heating * SECONDS_PER_HOUR)
         rows.append(f"{stamp}Z,850," + ",".join(f"{x:.4f}" for x in values))
         text.append(f"{stamp.replace('T', ' '):<17} {values[0]:7.2f} {values[1]:6.1f} "
                     f"{values[2]:6.1f} {values[3]:8.3f} {values[4]:8.3f}")

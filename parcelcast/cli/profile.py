@@ -22,7 +22,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--lat", type=float, help="latitude of a CSV profile (degrees north)")
     parser.add_argument("--lon", type=float, help="longitude of a CSV profile (degrees east)")
     parser.add_argument("--time", type=_common.utc_time, metavar="ISO",
-                        help="valid time (UTC unless a zone is given)")
+                        help="valid time (UTC unless a zone is given): of the analysis column, "
+                        "default the latest; or of a CSV profile that does not state one")
     parser.add_argument("--var", action="append", type=_common.variable_override, default=[],
                         metavar="ROLE=NAME", help="name the analysis variable for a role; repeatable")
     parser.add_argument("--advected-change", type=float, default=0.0, metavar="K",

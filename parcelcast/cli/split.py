@@ -94,7 +94,9 @@ def to_json(result: dict, args) -> dict:
             "advective = time integral of -V.grad T (trapezoid over analysis times)",
             "vertical = time integral of omega * static stability"
             + ("" if euler["vertical_available"] else ": not available (no omega in the input)"),
-            "residual = observed - advective - vertical: diabatic heating and errors",
+            f"residual = observed - advective - vertical: {euler['residual_note']}",
+            "lagrangian: the analysed change at the point, split following the unperturbed "
+            "trajectory of the first analysis member",
         ],
     }
     for key in ("observed_change_members_K", "advective_members_K", "residual_members_K"):

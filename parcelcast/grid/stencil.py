@@ -48,10 +48,10 @@ class Stencil:
             next_x = np.roll(x, -1)
             next_x[-1] += period
             index[:] = np.stack([(i - 1) % n, i, (i + 1) % n], axis=1)
-            weight[:] = _centred_weights(x - prev_x, next_x - x)
+            weight[:] = centred_weights(x - prev_x, next_x - x)
         else:
             index[1:-1] = np.stack([i[1:-1] - 1, i[1:-1], i[1:-1] + 1], axis=1)
-            weight[1:-1] = _centred_weights(x[1:-1] - x[:-2], x[2:] - x[1:-1])
+            weight[1:-1] = centred_weights(x[1:-1] - x[:-2], x[2:] - x[1:-1])
             index[0] = (0, 1, 2)
             weight[0] = _one_sided_weights(x[1] - x[0], x[2] - x[0])
             index[-1] = (n - 1, n - 2, n - 3)
@@ -88,7 +88,7 @@ class Stencil:
         return out
 
 
-def _centred_weights(h_minus, h_plus) -> np.ndarray:
+def centred_weights(h_minus, h_plus) -> np.ndarray:
     """Weights of f[i-1], f[i], f[i+1] for uneven steps h- and h+ (second order)."""
     hm = np.asarray(h_minus, dtype=np.float64)
     hp = np.asarray(h_plus, dtype=np.float64)

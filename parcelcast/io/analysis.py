@@ -24,6 +24,7 @@ from parcelcast.errors import (
     ParcelcastError,
     UnitsError,
     VariableNotFoundError,
+    warn,
 )
 from parcelcast.io import coords as coordinates
 from parcelcast.io.roles import ROLES, Role
@@ -115,9 +116,11 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
     ds = pieces[0] if len(pieces) == 1 else _combine_along_time(pieces, files)
     ds.attrs["source_files"] = ";".join(str(p) for p in files)
     ds.attrs["Conventions"] = "CF-1.10"
-    ds.attrs["missing_values"] = "; ".join(
-        f"{name}: {int(ds[name].isnull().sum())}" for name in ds.data_vars
-    )
+    if chunks is None:
+        ds.attrs["missing_values"] = "; ".join(
+            f"{name}: {int(ds[name].isnull().sum())}" for name in ds.data_vars)
+    else:  # counting would read every chunk now; results count their own missing points
+        ds.attrs["missing_values"] = "not counted on opening (dask-backed input)"
     return ds
 
 
@@ -404,4 +407,7 @@ def _combine_along_time(pieces: list[xr.Dataset], files: list[Path]) -> xr.Datas
         )
     if dropped:
         combined.attrs["not_in_every_file"] = ",".join(sorted(dropped))
+        lacking = "; ".join(f"{f}: lacks {', '.join(sorted(common ^ n))}"
+                            for f, n in zip(files, names) if n != set.union(*names))
+        warn(f"left out because not every file has them: {', '.join(sorted(dropped))} ({lacking})")
     return combined

@@ -49,7 +49,16 @@ class GribScan:
     problem: str = ""
     fields: list[str] = field(default_factory=list)
     grid: dict = field(default_factory=dict)  # projection keys of the first projected message
-    winds_grid_relative: bool | None = None  # from the u/v messages' component flags
+    wind_flags: set = field(default_factory=set)  # u/v relative to the grid? one per message
+
+    @property
+    def winds_grid_relative(self) -> bool | None:
+        """True/False from the u/v component flags; None without winds; mixed is refused."""
+        if len(self.wind_flags) > 1:
+            from parcelcast.errors import GridError
+
+            raise GridError("some wind fields are relative to the grid and some to east/north")
+        return next(iter(self.wind_flags), None)
 
     @property
     def damaged(self) -> bool:
@@ -92,9 +101,7 @@ def _note_projection(gid, name: str, scan: GribScan) -> None:
         scan.grid = keys
     if name in ("u", "v"):
         # WMO GRIB2 flag table 3.3 (GRIB1 table 7), bit 5 (value 8): u/v relative to the grid
-        relative = bool(int(eccodes.codes_get(gid, "resolutionAndComponentFlags")) & 8)
-        scan.winds_grid_relative = relative if scan.winds_grid_relative is None else (
-            scan.winds_grid_relative or relative)
+        scan.wind_flags.add(bool(int(eccodes.codes_get(gid, "resolutionAndComponentFlags")) & 8))
 
 
 def projection_crs(grid: dict):
@@ -106,7 +113,9 @@ def projection_crs(grid: dict):
     elif "earthMajorAxis" in grid:
         earth = {"semi_major_axis": grid["earthMajorAxis"], "semi_minor_axis": grid["earthMinorAxis"]}
     else:
-        raise ValueError("the GRIB grid does not state the shape of the Earth")
+        from parcelcast.errors import GridError
+
+        raise GridError("the GRIB grid definition does not state the shape of the Earth")
     if grid["gridType"] == "lambert":
         cf = {"grid_mapping_name": "lambert_conformal_conic",
               "standard_parallel": [grid["Latin1InDegrees"], grid["Latin2InDegrees"]],
@@ -144,7 +153,6 @@ def scan_messages(path: Path) -> GribScan:
     ``7777`` end marker, or does not decode counts as failed; the walk then
     resumes at the next ``GRIB`` marker so later intact messages are still seen.
     """
-    _load_proj_first()
     import eccodes
 
     scan = GribScan()
@@ -195,6 +203,7 @@ class GribGroups:
 
 def open_grib(path: Path) -> GribGroups:
     """Open every field group of a GRIB file; raise InputFileError if nothing decodes."""
+    _load_proj_first()
     import cfgrib
 
     scan = scan_messages(path)

@@ -14,6 +14,7 @@ from pathlib import Path
 import numpy as np
 
 from parcelcast.errors import InputFileError, ParcelcastError
+from parcelcast.times import parse_utc
 from parcelcast.units import convert
 
 _TEMPERATURE_COLUMNS = {"temperature_k": "K", "temperature_degc": "degC", "temperature_degf": "degF"}
@@ -67,15 +68,8 @@ def read_station_series(path) -> StationSeries:
         raise InputFileError(
             path, "expected exactly one temperature column named temperature_K, temperature_degC "
             f"or temperature_degF; columns: {', '.join(frame.columns)}")
-    times = []
-    for row, text in enumerate(frame[columns["time"]], start=2):
-        try:
-            stamp = pd.Timestamp(text.strip())
-        except (ValueError, TypeError):
-            raise ParcelcastError(f"{path}: row {row}: time {text!r} is not ISO 8601") from None
-        if stamp.tzinfo is not None:
-            stamp = stamp.tz_convert("UTC").tz_localize(None)
-        times.append(stamp.to_datetime64())
+    times = [parse_utc(text, f"{path}: row {row}")
+             for row, text in enumerate(frame[columns["time"]], start=2)]
     raw = frame[columns[found[0]]].str.strip()
     values = np.full(len(raw), np.nan)
     for i, text in enumerate(raw):

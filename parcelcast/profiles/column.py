@@ -13,6 +13,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.constants import SECONDS_PER_HOUR
+
 from parcelcast.errors import VariableNotFoundError
 from parcelcast.profiles.profile import Profile, fill_heights, validate
 from parcelcast.thermo import dewpoint_from_relative_humidity, dewpoint_from_specific_humidity
@@ -28,7 +30,7 @@ def _select(ds, time):
     if "member" in ds.dims:
         ds = ds.isel(member=0)
         notes.append("ensemble input: the first member's column is used")
-    ds = select_time(ds, time, default="first")
+    ds = select_time(ds, time, default="last")  # the latest analysis, as every command
     return ds, notes
 
 
@@ -45,7 +47,7 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Pr
     latitude, longitude : float
         Degrees north / east.
     time : numpy.datetime64, optional
-        Valid time (UTC); default the first time.
+        Valid time (UTC); default the latest analysis time.
 
     Returns
     -------
@@ -104,6 +106,9 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Pr
                                  ((ps, p), (t2, t), (td_sfc, td), (u[0], u), (v[0], v), (zs, z)))
             notes.append("ground level from surface pressure and 2-m temperature; its dew point and "
                          "wind are those of the lowest level above ground")
+    else:
+        notes.append("no surface pressure in the analysis: the lowest level is taken as the ground "
+                     "(levels below a high station's ground may be extrapolated values)")
     prof = Profile(pressure=p, height=z, temperature=t, dewpoint=td, u=u, v=v, latitude=float(latitude),
                    longitude=float(longitude), time=when,
                    source=f"{src} at {latitude:g},{longitude:g}", rows=None, notes=notes)
@@ -141,5 +146,5 @@ def gridded_layer_advection(ds, latitude: float, longitude: float, layers, time=
         a = np.asarray(value_at(adv, latitude, longitude).values, dtype=np.float64)
         x = np.log(lev)
         mean = np.sum(0.5 * (a[:-1] + a[1:]) * (x[:-1] - x[1:])) / (x[0] - x[-1])
-        out.append({"bottom_hPa": bottom, "top_hPa": top, "advection_K_per_h": float(mean) * 3600.0})
+        out.append({"bottom_hPa": bottom, "top_hPa": top, "advection_K_per_h": float(mean) * SECONDS_PER_HOUR})
     return out

@@ -194,9 +194,9 @@ def read_profile_csv(path, latitude=None, longitude=None, time=None) -> Profile:
         lon = float(col("longitude")[0])
     when = time
     if when is None and "time" in columns:
-        from parcelcast.cli._common import utc_time
+        from parcelcast.times import parse_utc
 
-        when = utc_time(body[0][columns["time"][0]])
+        when = parse_utc(body[0][columns["time"][0]], f"{path}: column time")
     rows = np.array(line_numbers)
     if n >= 2 and np.isfinite(p[0]) and np.isfinite(p[-1]) and p[0] < p[-1]:
         order = slice(None, None, -1)

@@ -37,7 +37,7 @@ from parcelcast.thermo import (
     virtual_temperature,
     wet_bulb_temperature,
 )
-from parcelcast.thermo.constants import G0, RHO_WATER, T_ZERO_C
+from parcelcast.thermo.constants import G0, KAPPA, RHO_WATER, T_ZERO_C
 
 __all__ = ["analyse", "crossing_height", "inversions", "precipitable_water"]
 
@@ -150,7 +150,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
         if pl >= 50000.0:
             tp500 = float(pseudoadiabat(tl, pl, np.array([50000.0]))[0])
         else:
-            tp500 = t850 * (50000.0 / 85000.0) ** 0.2857
+            tp500 = t850 * (50000.0 / 85000.0) ** KAPPA
         res["showalter_index_K"] = t500 - tp500
     else:
         res["showalter_index_K"] = np.nan

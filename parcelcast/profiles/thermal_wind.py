@@ -21,7 +21,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.constants import EARTH_ANGULAR_VELOCITY
+from parcelcast.constants import SECONDS_PER_HOUR
+from parcelcast.geostrophic import EQUATORIAL_BAND_DEG
+from parcelcast.grid.latlon import coriolis_parameter
 from parcelcast.profiles.profile import value_at_pressure
 from parcelcast.thermo.constants import RD
 
@@ -29,13 +31,9 @@ __all__ = ["DEFAULT_LAYERS_HPA", "coriolis_parameter", "layer_advection", "therm
 
 #: layer boundaries (hPa) used by default: 1000-850, 850-700, 700-500, 500-300.
 DEFAULT_LAYERS_HPA = (1000.0, 850.0, 700.0, 500.0, 300.0)
-#: |latitude| below which the geostrophic relation is not used (degrees).
-EQUATORIAL_LIMIT = 5.0
-
-
-def coriolis_parameter(latitude):
-    """f = 2 Omega sin(latitude) (s-1); latitude in degrees north."""
-    return 2.0 * EARTH_ANGULAR_VELOCITY * np.sin(np.deg2rad(np.asarray(latitude, dtype=np.float64)))
+#: |latitude| below which the geostrophic relation is not used (degrees): the same band as
+#: the gridded geostrophic wind, so the two estimates are masked alike.
+EQUATORIAL_LIMIT = EQUATORIAL_BAND_DEG
 
 
 def layer_advection(p_bottom, p_top, u_bottom, v_bottom, u_top, v_top, coriolis, u_mean=None, v_mean=None):
@@ -123,5 +121,5 @@ def thermal_wind_advection(pressure, u, v, latitude, layers_hpa=DEFAULT_LAYERS_H
         um, vm = _mean_lnp(p, u, pb, pt), _mean_lnp(p, v, pb, pt)
         adv = float(layer_advection(pb, pt, ub, vb, ut, vt, f, um, vm))
         out.append({"bottom_hPa": pb / 100.0, "top_hPa": pt / 100.0,
-                    "advection_K_per_h": adv * 3600.0, "advection_K_per_s": adv})
+                    "advection_K_per_h": adv * SECONDS_PER_HOUR, "advection_K_per_s": adv})
     return out

@@ -8,9 +8,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.constants import SECONDS_PER_HOUR
 from parcelcast.io.atomic import atomic_path
-
-SECONDS_PER_HOUR = 3600.0
 
 
 def advection_map(level_fields, path=None, station=None, ax=None):

@@ -60,6 +60,8 @@ def timeline_figure(review: dict, path=None, ax=None):
 
 def split_maps_figure(review: dict, path=None):
     """Maps of the observed change and its parts over the window (K)."""
+    from parcelcast.selection import member_mean
+
     plt = _pyplot()
     fields = review["fields"]
     names = [n for n in ("observed_change", "advective", "vertical", "residual") if n in fields]
@@ -68,8 +70,7 @@ def split_maps_figure(review: dict, path=None):
     drawn = {}
     for ax, name in zip(axes[0], names):
         da = fields[name]
-        if "member" in da.dims:
-            da = da.mean("member")
+        da = member_mean(da)
         lat, lon = da["lat"].values, da["lon"].values
         box = (np.abs(lat - case.lat) <= 25)[:, None] & (np.abs(((lon - case.lon + 180) % 360) - 180) <= 35)[None, :]
         values = np.where(box, da.values, np.nan)

@@ -16,6 +16,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.constants import KAPPA
+
 __all__ = [
     "SKEW",
     "COLOURS",
@@ -91,7 +93,7 @@ def draw_guides(ax=None, p_bottom=P_BOTTOM, p_top=P_TOP):
         c = COLOURS["zero"] if t == 0 else COLOURS["isotherm"]
         drawn += ax.plot(skewed_x(np.full(p.shape, t), p), p, color=c, lw=0.8 if t else 1.2, zorder=1)
     for th in range(250, 471, 10):
-        tk = th * (p / 1000.0) ** 0.2857
+        tk = th * (p / 1000.0) ** KAPPA
         drawn += ax.plot(skewed_x(tk - 273.15, p), p, color=COLOURS["dry_adiabat"], lw=0.7, zorder=1)
     starts = np.arange(-10.0, 36.0, 5.0) + 273.15
     pm = np.geomspace(1000.0, max(p_top, 200.0), 40)

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.grid.stencil import centred_weights
+
 from parcelcast.thermo.constants import CPD, EPSILON, G0, KAPPA, P0, RD
 
 __all__ = [
@@ -148,11 +150,6 @@ def static_stability(temperature, pressure):
     dtdp[..., 0] = (t[..., 1] - t[..., 0]) / (p[..., 1] - p[..., 0])
     dtdp[..., -1] = (t[..., -1] - t[..., -2]) / (p[..., -1] - p[..., -2])
     if t.shape[-1] > 2:
-        h0 = p[..., 1:-1] - p[..., :-2]
-        h1 = p[..., 2:] - p[..., 1:-1]
-        dtdp[..., 1:-1] = (
-            -h1 / (h0 * (h0 + h1)) * t[..., :-2]
-            + (h1 - h0) / (h0 * h1) * t[..., 1:-1]
-            + h0 / (h1 * (h0 + h1)) * t[..., 2:]
-        )
+        w = centred_weights(p[..., 1:-1] - p[..., :-2], p[..., 2:] - p[..., 1:-1])
+        dtdp[..., 1:-1] = w[..., 0] * t[..., :-2] + w[..., 1] * t[..., 1:-1] + w[..., 2] * t[..., 2:]
     return RD * t / (CPD * p) - dtdp

@@ -26,7 +26,7 @@ import functools
 
 import numpy as np
 
-from parcelcast.thermo.constants import CPD, CPV, DLV_DT, EPSILON, RD, T_ZERO_C
+from parcelcast.thermo.constants import CPD, CPV, DLV_DT, EPSILON, LV0, RD, T_ZERO_C
 from parcelcast.thermo.lcl import lcl_temperature_bolton
 from parcelcast.thermo.moisture import mixing_ratio_from_dewpoint
 
@@ -62,7 +62,7 @@ def pseudoadiabatic_lapse_rate(temperature, pressure):
     pd = p - es
     rs = EPSILON * es / pd
     rst = EPSILON * des * p / (pd * pd)
-    lv = 2.501e6 - DLV_DT * tc
+    lv = LV0 - DLV_DT * tc
     a = (CPD + rs * CPV) / t + RD * des / pd + lv * rst / t - lv * rs / (t * t)
     b = -RD * p / pd - lv * rs * p / (t * pd)
     return -b / a

@@ -461,6 +461,7 @@ class CornerCache:
 
     def __init__(self):
         self.tag = None
+        self.omega = None
         self.key = np.full((2, 0), -1, dtype=np.int64)
         self.val = np.empty((2, 0, 4, 2, 3))
 
@@ -520,6 +521,9 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
         cache = CornerCache().use(n, None)
     elif cache.key.shape[1] != n:
         raise ValueError("corner cache built for another number of parcels")
+    if cache.omega != omega:  # cached cells lack omega (or carry it needlessly)
+        cache.key[:] = -1
+        cache.omega = omega
 
     def field(d, name):
         return np.ascontiguousarray(d[name], dtype=np.float64)
