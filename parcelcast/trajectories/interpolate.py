@@ -455,8 +455,10 @@ class CornerCache:
     """Grid-corner values of the cell each parcel was last sampled in (compiled path).
 
     One per run of :func:`wind_tendency` calls on the same parcels (same number, same
-    order) and the same pair of time slices; :meth:`use` starts afresh when either
-    changes (``tag`` names the pair, e.g. the analysis interval).
+    order) and the same pair of time slices; :meth:`use` starts afresh when the number or
+    ``tag`` (naming the pair, e.g. the analysis interval) changes.  The caller must give a
+    new tag if the parcels change but their number does not (``integrate`` never does:
+    its active set only shrinks).  Cached values are exact copies of the fields.
     """
 
     def __init__(self):
