@@ -190,7 +190,7 @@ def test_advection_on_level_geostrophic_and_missing_count():
 
 # ------------------------------------------------------------------------------------ dask
 def test_dask_chunked_equals_in_memory_and_is_lazy():
-    dask = pytest.importorskip("dask")
+    import dask
     lat = np.arange(20.0, 70.01, 2.0)
     lon = np.arange(-180.0, 180.0, 4.0)
     times = np.datetime64("2024-01-01T00", "ns") + np.arange(4) * np.timedelta64(6, "h")
@@ -208,7 +208,7 @@ def test_dask_chunked_equals_in_memory_and_is_lazy():
 
 
 def test_dask_geostrophic_lazy():
-    dask = pytest.importorskip("dask")
+    import dask
     lat = np.arange(20.0, 60.01, 2.0)
     lon = np.arange(0.0, 40.01, 2.0)
     phi, ug_exact, _ = linear_geopotential(lat, lon)
@@ -228,7 +228,7 @@ def test_numpy_layer_matches_xarray_layer():
 def test_dask_through_open_analysis(tmp_path):
     # chunks requested at reading time: the canonical variables and the advection stay lazy,
     # and the computed result equals the in-memory one
-    dask = pytest.importorskip("dask")
+    import dask
     from datasets import TIME, raw_cf, small_atmosphere, write_netcdf
     from parcelcast.io.analysis import open_analysis
 

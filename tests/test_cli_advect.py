@@ -141,15 +141,16 @@ def test_geostrophic_json_on_ensemble_reports_members(capsys):
 HEAVY = ("xarray", "matplotlib", "cartopy", "dask", "numba", "cfgrib", "eccodes", "pandas", "numpy")
 
 
-def test_help_is_fast_and_imports_nothing_heavy():
+def test_help_imports_nothing_heavy():
     cmd = [*cli_command(), "--help"]
     subprocess.run(cmd, capture_output=True, check=True)  # warm the file cache once
     start = time.perf_counter()
     done = subprocess.run(cmd, capture_output=True, text=True)
     elapsed = time.perf_counter() - start
     assert done.returncode == 0 and "advect" in done.stdout
+    # "well under a second" (issue 2 item 5) is kept by importing nothing heavy (checked
+    # below); the time is reported, not asserted (no timing in tests)
     print(f"\nparcelcast --help: {elapsed:.3f} s")
-    assert elapsed < 0.8  # "well under a second" (issue 2 item 5)
     probe = ("import sys\nfrom parcelcast.cli import main\n"
              "for argv in (['--help'], ['advect', '--help']):\n"
              "    try:\n        main(argv)\n    except SystemExit:\n        pass\n"

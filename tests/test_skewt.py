@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-matplotlib = pytest.importorskip("matplotlib")
+import matplotlib
 matplotlib.use("Agg")
 
 from parcelcast.profiles import Profile, analyse, validate  # noqa: E402

@@ -24,7 +24,7 @@ from parcelcast.thermo import (
     wet_bulb_temperature,
 )
 
-psy = pytest.importorskip("psychrolib")
+import psychrolib as psy
 psy.SetUnitSystem(psy.SI)
 
 CASES = [(101325.0, 1000.0), (101325.0, 3000.0), (85000.0, 500.0), (50000.0, 60.0), (95000.0, 4200.0)]

@@ -169,7 +169,7 @@ def test_stable_column_has_no_lfc():
 
 @pytest.mark.slow
 def test_property_signs_and_bounds():
-    hypothesis = pytest.importorskip("hypothesis")
+    import hypothesis
     from hypothesis import given, settings
     from hypothesis import strategies as st
 

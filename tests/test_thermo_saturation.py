@@ -13,7 +13,7 @@ import pytest
 from parcelcast.thermo import dewpoint_from_vapour_pressure, saturation_vapour_pressure
 from parcelcast.thermo.saturation import saturation_vapour_pressure_derivative
 
-iapws = pytest.importorskip("iapws")
+import iapws
 
 WATER_T = [273.16, 278.15, 288.15, 298.15, 308.15, 318.15, 333.15]
 

@@ -68,6 +68,27 @@ def json_number(value, digits: int = 6):
     return round(value, digits)
 
 
+def jsonable(obj, digits: int = 4):
+    """Plain JSON values: floats rounded (9 decimals for per-second rates, which are ~1e-5),
+    NaN as null, numpy scalars and times converted, keys starting with '_' left out."""
+    import numpy as np
+
+    if isinstance(obj, dict):
+        return {k: jsonable(v, 9 if str(k).endswith("_per_s") else digits)
+                for k, v in obj.items() if not str(k).startswith("_")}
+    if isinstance(obj, (list, tuple)):
+        return [jsonable(v, digits) for v in obj]
+    if isinstance(obj, (bool, np.bool_)):
+        return bool(obj)
+    if isinstance(obj, (int, np.integer)):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
+        return json_number(obj, digits)
+    if isinstance(obj, np.datetime64):
+        return iso_utc(obj)
+    return obj
+
+
 def print_json(obj) -> None:
     json.dump(obj, sys.stdout, indent=2, allow_nan=False)
     sys.stdout.write("\n")

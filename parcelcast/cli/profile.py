@@ -33,22 +33,6 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--plot", metavar="PATH.png", help="draw a skew-T log-p diagram to this file")
 
 
-def _clean(obj, digits: int = 4):
-    """JSON-ready values: 4 decimals, 9 for per-second rates (K s-1 values are ~1e-5)."""
-    import numpy as np
-
-    if isinstance(obj, dict):
-        return {k: _clean(v, 9 if k.endswith("_per_s") else digits)
-                for k, v in obj.items() if not k.startswith("_")}
-    if isinstance(obj, (list, tuple)):
-        return [_clean(v, digits) for v in obj]
-    if isinstance(obj, (int, np.integer)) and not isinstance(obj, bool):
-        return int(obj)
-    if isinstance(obj, (float, np.floating)):
-        return _common.json_number(obj, digits)
-    return obj
-
-
 def build_report(profile, result, comparison=None) -> dict:
     """The JSON document of the command (library values, renamed for people)."""
     from parcelcast.cli import DISCLAIMER
@@ -68,7 +52,7 @@ def build_report(profile, result, comparison=None) -> dict:
         "latitude; veering with height = warm advection (northern hemisphere)")
     doc["notes"] = list(profile.notes)
     doc["disclaimer"] = DISCLAIMER
-    return _clean(doc)
+    return _common.jsonable(doc)
 
 
 def _text(doc) -> str:

@@ -17,6 +17,7 @@ def run(args) -> int:
     from pathlib import Path
 
     from parcelcast.cli import DISCLAIMER
+    from parcelcast.cli._common import jsonable
     from parcelcast.io.atomic import atomic_path, write_text
     from parcelcast.render.review_figures import split_maps_figure, timeline_figure, trajectories_figure
     from parcelcast.report import html_page, markdown
@@ -39,10 +40,11 @@ def run(args) -> int:
     write_text(out / "timeline.csv", buffer.getvalue())
     with atomic_path(out / "split-fields.nc") as tmp:
         review["fields"].to_netcdf(tmp, engine="netcdf4")
-    summary = {key: value for key, value in review["eulerian"].items()}
+    summary = dict(review["eulerian"])
     summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
+    summary["advective_difference_K"] = review["advective_difference_K"]
     summary["disclaimer"] = DISCLAIMER
-    write_text(out / "review.json", json.dumps(summary, indent=2, default=str) + "\n")
+    write_text(out / "review.json", json.dumps(jsonable(summary), indent=2, allow_nan=False) + "\n")
     write_text(out / "report.md", markdown(review))
     write_text(out / "report.html", html_page(review))
     print(f"case review written to {out}/ (report.md, report.html, figures, timeline.csv)")
