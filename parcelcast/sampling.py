@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.constants import EARTH_RADIUS
 from parcelcast.errors import SelectionError
 
 
@@ -40,11 +39,9 @@ def value_at(da, lat: float, lon: float, grid=None):
 
 def great_circle_km(lat1, lon1, lat2, lon2):
     """Great-circle distance (km) on the sphere of radius EARTH_RADIUS (haversine)."""
-    p1, p2 = np.deg2rad(lat1), np.deg2rad(lat2)
-    dphi = p2 - p1
-    dlmb = np.deg2rad(np.asarray(lon2) - np.asarray(lon1))
-    h = np.sin(dphi / 2) ** 2 + np.cos(p1) * np.cos(p2) * np.sin(dlmb / 2) ** 2
-    return 2 * EARTH_RADIUS / 1000.0 * np.arcsin(np.sqrt(np.clip(h, 0, 1)))
+    from parcelcast.trajectories.sphere import great_circle_distance
+
+    return great_circle_distance(lat1, lon1, lat2, lon2) / 1000.0
 
 
 def area_mean(da, lat: float, lon: float, radius_km: float | None = None,

@@ -238,3 +238,27 @@ def test_grib_polar_stereographic_winds(tmp_path, relative):
         assert np.abs(ug - 6.0).max() < 1e-3 and np.abs(vg - 3.0).max() < 1e-3
     else:
         assert np.allclose(ds["u"].values, 6.0) and np.allclose(ds["v"].values, 3.0)
+
+
+def test_split_on_a_projected_grid_keeps_the_eulerian_view(tmp_path, capsys):
+    """Trajectories need a lat-lon grid: the split says so instead of failing or guessing."""
+    import json
+
+    from parcelcast.cli import main
+
+    write_projected(tmp_path / "a.nc", "lambert")
+    later = xr.open_dataset(tmp_path / "a.nc").load()
+    later["time"] = np.datetime64("2026-03-14T06:00", "ns")
+    later["T"] = later["T"] + 1.0  # uniform 1 K warming: not advection
+    later.to_netcdf(tmp_path / "b.nc")
+    args = ["split", str(tmp_path / "a.nc"), str(tmp_path / "b.nc"), "--at", "41,-95",
+            "--level", "850", "--start", "2026-03-14T00", "--end", "2026-03-14T06", "--json"]
+    assert main(args) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["observed_change_K"] == pytest.approx(1.0, abs=1e-4)
+    assert out["observed_change_K"] == pytest.approx(out["advective_K"] + out["residual_K"], abs=2e-4)
+    assert out["lagrangian"]["advective_K"] is None
+    assert "latitude-longitude" in out["lagrangian"]["statuses"][0]
+    assert main(["track", str(tmp_path / "a.nc"), "--from", "41,-95", "--level", "850",
+                 "--back", "6"]) == 2
+    assert "map-projected" in capsys.readouterr().err

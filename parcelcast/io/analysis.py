@@ -27,24 +27,8 @@ from parcelcast.errors import (
     warn,
 )
 from parcelcast.io import coords as coordinates
-from parcelcast.io.roles import ROLES, Role
+from parcelcast.io.roles import PLAUSIBLE_RANGE, ROLES, Role
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
-
-#: plausible range of each role's canonical SI values (checked on the first time step).
-#: Sources: common meteorological practice (observed extremes of the troposphere and
-#: lower stratosphere: about 170-340 K; winds below ~130 m/s; omega below ~10 Pa/s).
-PLAUSIBLE_RANGE = {
-    "temperature": (150.0, 350.0),
-    "near_surface_temperature": (180.0, 345.0),
-    "u": (-150.0, 150.0),
-    "v": (-150.0, 150.0),
-    "omega": (-30.0, 30.0),
-    "vertical_velocity": (-50.0, 50.0),
-    "relative_humidity": (0.0, 1.5),
-    "specific_humidity": (0.0, 0.06),
-    "surface_pressure": (40_000.0, 110_000.0),
-}
-
 
 def expand_paths(paths) -> list[Path]:
     """Expand globs; every pattern must match at least one existing file."""

@@ -74,3 +74,18 @@ COORDINATES: dict[str, tuple[tuple[str, ...], tuple[str, ...], str]] = {
                "isobaric", "pres"), "Z"),
     "member": (("realization",), ("number", "member", "realization", "ensemble_member", "ens"), ""),
 }
+
+#: plausible range of each role's canonical SI values (checked on the first time step).
+#: Sources: common meteorological practice (observed extremes of the troposphere and
+#: lower stratosphere: about 170-340 K; winds below ~130 m/s; omega below ~10 Pa/s).
+PLAUSIBLE_RANGE = {
+    "temperature": (150.0, 350.0),
+    "near_surface_temperature": (180.0, 345.0),
+    "u": (-150.0, 150.0),
+    "v": (-150.0, 150.0),
+    "omega": (-30.0, 30.0),
+    "vertical_velocity": (-50.0, 50.0),
+    "relative_humidity": (0.0, 1.5),
+    "specific_humidity": (0.0, 0.06),
+    "surface_pressure": (40_000.0, 110_000.0),
+}

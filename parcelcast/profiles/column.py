@@ -129,6 +129,7 @@ def gridded_layer_advection(ds, latitude: float, longitude: float, layers, time=
         ``{"bottom_hPa", "top_hPa", "advection_K_per_h"}``.
     """
     from parcelcast.advection import advection
+    from parcelcast.layers import layer_mean
     from parcelcast.sampling import value_at
 
     ds, _ = _select(ds, time)
@@ -143,8 +144,6 @@ def gridded_layer_advection(ds, latitude: float, longitude: float, layers, time=
             continue
         sub = ds.sel(level=lev)
         adv = advection(sub["temperature"], sub["u"], sub["v"])
-        a = np.asarray(value_at(adv, latitude, longitude).values, dtype=np.float64)
-        x = np.log(lev)
-        mean = np.sum(0.5 * (a[:-1] + a[1:]) * (x[:-1] - x[1:])) / (x[0] - x[-1])
+        mean = layer_mean(value_at(adv, latitude, longitude), pb, pt)  # ln p-weighted
         out.append({"bottom_hPa": bottom, "top_hPa": top, "advection_K_per_h": float(mean) * SECONDS_PER_HOUR})
     return out

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from parcelcast.errors import ProfileError
+from parcelcast.io.roles import PLAUSIBLE_RANGE
 from parcelcast.thermo import mixing_ratio_from_dewpoint, potential_temperature, virtual_temperature
 from parcelcast.thermo.constants import G0, RD
 
@@ -23,10 +24,10 @@ __all__ = ["Profile", "validate", "fill_heights"]
 #: (common meteorological practice): T 150-350 K, winds below 150 m/s, p 1-1100 hPa.
 _RANGES = {
     "pressure": (100.0, 110000.0),
-    "temperature": (150.0, 350.0),
+    "temperature": PLAUSIBLE_RANGE["temperature"],
     "dewpoint": (120.0, 350.0),
-    "u": (-150.0, 150.0),
-    "v": (-150.0, 150.0),
+    "u": PLAUSIBLE_RANGE["u"],
+    "v": PLAUSIBLE_RANGE["v"],
     "height": (-500.0, 60000.0),
 }
 

@@ -105,6 +105,11 @@ def compute_trajectories(
     >>> str(out.status_name.values[0])
     'ok'
     """
+    if "x" in ds.dims and "y" in ds.dims:
+        raise TrajectoryError(
+            f"{ds.attrs.get('source_files', 'input')}: trajectories need a latitude-longitude "
+            "grid; this analysis is on a map-projected grid (x, y). Regrid it to latitude-"
+            "longitude first (advection, profiles and the Eulerian split work on it as it is)")
     span_s = float(check_quantity(duration, "time", "duration"))
     p_start = float(check_quantity(level, "pressure", "level"))
     out_s = 3600.0 if output_interval is None else float(check_quantity(output_interval, "time", "output interval"))
