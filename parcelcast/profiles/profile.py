@@ -9,6 +9,7 @@ breaks it) and records what is allowed but worth saying (``notes``).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -116,7 +117,13 @@ def validate(profile: Profile, column_names: dict[str, str] | None = None) -> Pr
     ----------
     column_names : dict, optional
         ``{"pressure": "pressure_hPa", ...}``: the source's names for messages.
+
+    Returns
+    -------
+    Profile
+        A checked copy (saturation clipping, filled heights, notes); the argument is unchanged.
     """
+    profile = dataclasses.replace(profile, notes=list(profile.notes))
     names = {"pressure": "pressure", "temperature": "temperature", "dewpoint": "dewpoint",
              "u": "u", "v": "v", "height": "height"}
     names.update(column_names or {})
