@@ -16,7 +16,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.grid.latlon import LatLonGrid
 
 def advection_array(scalar, u, v, grid) -> np.ndarray:
     """-(u ds/dx + v ds/dy) on float64 arrays of shape (..., ny, nx).

@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import json
-import os
 import subprocess
 import sys
-from pathlib import Path
 
 import pytest
 
 from parcelcast.cli import main
+from datasets import data_file
 
 CSV = """pressure_hPa,height_m,temperature_degC,dewpoint_degC,wind_direction_deg,wind_speed_kt
 1000,110,24.0,17.0,180,10
@@ -21,14 +20,6 @@ CSV = """pressure_hPa,height_m,temperature_degC,dewpoint_degC,wind_direction_deg
 300,9350,-40.0,,270,70
 """
 PARCELS = {"surface", "mixed_layer", "most_unstable"}
-
-
-def _data_file(name):
-    folder = Path(os.environ.get("PARCELCAST_DATA") or Path(__file__).resolve().parents[1].parent / "shared" / "data")
-    path = folder / name
-    if not path.is_file():
-        pytest.skip(f"real-data file {name} not found in {folder} (set PARCELCAST_DATA)")
-    return path
 
 
 def _check_contract(doc):
@@ -82,7 +73,7 @@ def test_help_does_not_import_heavy_modules():
 
 @pytest.mark.realdata
 def test_gfs_column_json_contract(capsys, tmp_path):
-    path = _data_file("gfs-20111008T00-f072-global-2p5deg.grb2")
+    path = data_file("gfs-20111008T00-f072-global-2p5deg.grb2")
     out = tmp_path / "gfs.png"
     assert main(["profile", str(path), "--at", "46.25,8.75", "--time", "2011-10-11T00:00", "--json",
                  "--plot", str(out)]) == 0

@@ -12,22 +12,13 @@ PROVENANCE.md): the profile's estimate against the gridded layer-mean advection
 
 from __future__ import annotations
 
-import os
-from pathlib import Path
 
 import numpy as np
 import pytest
 
 from parcelcast.profiles import coriolis_parameter, layer_advection, thermal_wind_advection
 from parcelcast.thermo.constants import RD
-
-
-def _data_file(name):
-    folder = Path(os.environ.get("PARCELCAST_DATA") or Path(__file__).resolve().parents[1].parent / "shared" / "data")
-    path = folder / name
-    if not path.is_file():
-        pytest.skip(f"real-data file {name} not found in {folder} (set PARCELCAST_DATA)")
-    return path
+from datasets import data_file
 
 
 def _geostrophic_column(lat, grad, v0, p):
@@ -79,7 +70,7 @@ def test_gfs_columns_against_gridded_advection():
     from parcelcast.io.analysis import open_analysis
     from parcelcast.profiles import column_from_analysis, gridded_layer_advection
 
-    ds = open_analysis([_data_file("gfs-20111008T00-f072-global-2p5deg.grb2")])
+    ds = open_analysis([data_file("gfs-20111008T00-f072-global-2p5deg.grb2")])
     pairs = []
     for lat in (-53.75, -43.75, -33.75, 36.25, 46.25, 56.25):
         for lon in np.arange(-173.75, 180.0, 36.0):

@@ -169,7 +169,6 @@ def test_stable_column_has_no_lfc():
 
 @pytest.mark.slow
 def test_property_signs_and_bounds():
-    import hypothesis
     from hypothesis import given, settings
     from hypothesis import strategies as st
 

@@ -13,7 +13,7 @@ import xarray as xr
 
 from parcelcast.constants import STANDARD_GRAVITY
 from parcelcast.errors import SelectionError
-from parcelcast.units import Q_, check_quantity
+from parcelcast.units import check_quantity
 from parcelcast.trajectories.ensemble import cloud_starts, spread
 from parcelcast.trajectories.errors import StartPointError, TrajectoryError
 from parcelcast.trajectories.fields import build_source, from_seconds, to_seconds
