@@ -24,7 +24,7 @@ def summary_rows(review: dict) -> list[tuple[str, str]]:
         ("Observed change", _k(e["observed_change_K"])),
         ("Advective part (Eulerian, -V.grad T integrated)", _k(e["advective_K"])),
         ("Vertical-motion part (omega S_p integrated)", _k(e["vertical_K"])),
-        ("Residual: diabatic heating and errors", _k(e["residual_K"])),
+        (f"Residual: {e['residual_note']}", _k(e["residual_K"])),
         ("Lagrangian non-advective part (following the air)", _k(lg["non_advective_K"])),
         ("Lagrangian advective part", _k(lg["advective_K"])),
         ("Spread of the Lagrangian estimate", _k(lg["spread_K"])),
