@@ -77,11 +77,22 @@ def _check_window(ds, start, end) -> None:
                              f"analysis times {str(times[0])[:16]} to {str(times[-1])[:16]} UTC", source)
 
 
+def _bounding_times(ds, start, end):
+    """The analysis times from the last one at or before ``start`` to the first at or after ``end``."""
+    times = ds["time"].values
+    first = int(np.searchsorted(times, np.datetime64(start, "ns"), side="right") - 1)
+    last = int(np.searchsorted(times, np.datetime64(end, "ns"), side="left"))
+    return ds.isel(time=slice(max(first, 0), last + 1))
+
+
 def _weighted(da, weights):
+    """sum_i w_i da(t_i) over the times that count (a NaN outside the window does not
+    reach the result; a NaN inside it does: missing stays missing)."""
     import xarray as xr
 
-    w = xr.DataArray(weights, dims="time", coords={"time": da["time"]})
-    return (da * w).sum("time", skipna=False)
+    used = np.flatnonzero(weights)
+    w = xr.DataArray(weights[used], dims="time", coords={"time": da["time"].values[used]})
+    return (da.isel(time=used) * w).sum("time", skipna=False)
 
 
 # ------------------------------------------------------------------ the gridded parts
@@ -114,6 +125,7 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     check_wind(wind)
     _check_window(ds, start, end)
     require(ds, "temperature", purpose="the trend split")
+    ds = _bounding_times(ds, start, end)  # compute only what the window uses
     temperature = select_level(ds, level_hpa)["temperature"]
     if wind == "actual":
         require(ds, "u", "v", purpose="advection by the actual wind")

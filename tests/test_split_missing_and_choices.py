@@ -112,3 +112,15 @@ def test_temperature_advection_in_degf_is_converted():
         results[units] = advection(t, wind, calm)
     assert results["degF"].attrs["units"] == "K s-1"
     np.testing.assert_allclose(results["degF"].values, results["K"].values * 5.0 / 9.0, rtol=1e-12)
+
+
+def test_missing_values_outside_the_window_do_not_reach_it(analysis):
+    """Only analysis times that bound the window enter it; a gap elsewhere changes nothing."""
+    gappy = analysis.copy()
+    temperature = gappy["temperature"].copy()
+    temperature[-1] = np.nan  # the last analysis time, well after END
+    gappy["temperature"] = temperature
+    whole = budget.eulerian_split(analysis, demo.STATION_LAT, demo.STATION_LON, 850.0, START, END)
+    gap = budget.eulerian_split(gappy, demo.STATION_LAT, demo.STATION_LON, 850.0, START, END)
+    for key in ("observed_change_K", "advective_K", "vertical_K", "residual_K"):
+        assert gap[key] == pytest.approx(whole[key], abs=1e-12)
