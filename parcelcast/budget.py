@@ -327,7 +327,10 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
     """Temperature guidance at the station for the next hours, each with its assumptions.
 
     (a) advective extrapolation of the present advection; (b) the upstream estimate: the
-    temperature found now where a steady-flow back trajectory of the lead time starts.
+    temperature found now where a steady-flow back trajectory of the lead time starts;
+    (d) where the analyses reach 24 h back, (a) plus the diurnal course: the non-advective
+    change (residual and vertical part) of the same hours yesterday; (c) the top temperature
+    from the analysis column (common practice).  Each entry says what it assumes.
     """
     from parcelcast.advection import advection_on_level
     from parcelcast.sampling import value_at
@@ -354,6 +357,8 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
             "advective_extrapolation_K": t_now + adv_now * lead,
             "upstream_K": upstream,
             "upstream_status": status,
+            "with_diurnal_course_K": _with_diurnal_course(ds, lat, lon, level_hpa, now, lead, wind,
+                                                          t_now + adv_now * lead),
         })
     out.append(_top_temperature(ds, lat, lon, now))
     return [{"now_K": t_now, "advection_now_K_per_h": adv_now,
@@ -361,7 +366,22 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
                  "advective_extrapolation": "present advection persists unchanged; no diabatic "
                                             "or vertical-motion change",
                  "upstream": "steady flow (the latest analysis); the air keeps its temperature "
-                             "along an isobaric path"}}] + out
+                             "along an isobaric path",
+                 "with_diurnal_course": "advective extrapolation plus the non-advective change "
+                                        "of the same hours yesterday (diurnal persistence); "
+                                        "null where the analyses do not reach back far enough"}}] + out
+
+
+def _with_diurnal_course(ds, lat, lon, level_hpa, now, lead, wind, advective_estimate):
+    """Advective extrapolation plus yesterday's non-advective change over the same hours."""
+    day = np.timedelta64(24, "h")
+    start = now - day
+    end = start + np.timedelta64(int(round(lead * 60)), "m")
+    if lead > 24 or start < ds["time"].values[0]:
+        return None
+    split = eulerian_split(ds, lat, lon, level_hpa, start, end, wind)
+    non_advective = split["residual_K"] + (split["vertical_K"] or 0.0)
+    return advective_estimate + non_advective if np.isfinite(non_advective) else None
 
 
 def _top_temperature(ds, lat: float, lon: float, now) -> dict:

@@ -126,8 +126,10 @@ def print_text(s: dict) -> None:
     for item in s.get("guidance", [])[1:]:
         if "lead_h" in item:
             up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"
+            diurnal = item["with_diurnal_course_K"]
             lines.append(f"  guidance +{item['lead_h']} h: advective extrapolation "
-                         f"{item['advective_extrapolation_K']:.1f} K, upstream {up}")
+                         f"{item['advective_extrapolation_K']:.1f} K, upstream {up}"
+                         + ("" if diurnal is None else f", with yesterday's diurnal course {diurnal:.1f} K"))
         elif item.get("top_temperature"):
             lines.append(f"  top temperature (mixing down, common practice): "
                          f"{item['top_temperature']['temperature_K']:.1f} K")
