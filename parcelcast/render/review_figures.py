@@ -58,33 +58,39 @@ def timeline_figure(review: dict, path=None, ax=None):
     return lines
 
 
+_PANEL_TITLES = {"observed_change": "observed change", "advective": "advective part (-V\u00b7\u2207T)",
+                 "vertical": "vertical-motion part", "residual": "residual"}
+
+
 def split_maps_figure(review: dict, path=None):
-    """Maps of the observed change and its parts over the window (K)."""
+    """Maps of the observed change and its parts over the window (K), on one colour scale
+    so the panels compare directly (member mean where the analysis has members)."""
     from parcelcast.selection import member_mean
 
     plt = _pyplot()
     fields = review["fields"]
-    names = [n for n in ("observed_change", "advective", "vertical", "residual") if n in fields]
-    fig, axes = plt.subplots(1, len(names), figsize=(4.2 * len(names), 3.8), squeeze=False)
     case = review["case"]
+    names = [n for n in _PANEL_TITLES if n in fields]
+    lat, lon = fields["lat"].values, fields["lon"].values
+    near = ((np.abs(lat - case.lat) <= 25)[:, None]
+            & (np.abs(((lon - case.lon + 180) % 360) - 180) <= 35)[None, :])
+    panels = {name: np.where(near, member_mean(fields[name]).values, np.nan) for name in names}
+    finite = np.abs(np.concatenate([v[np.isfinite(v)] for v in panels.values()]))
+    limit = max(float(np.percentile(finite, 98)) if finite.size else 1.0, 0.5)
+    fig, axes = plt.subplots(1, len(names), figsize=(3.9 * len(names), 3.8), squeeze=False,
+                             constrained_layout=True)
     drawn = {}
     for ax, name in zip(axes[0], names):
-        da = fields[name]
-        da = member_mean(da)
-        lat, lon = da["lat"].values, da["lon"].values
-        box = (np.abs(lat - case.lat) <= 25)[:, None] & (np.abs(((lon - case.lon + 180) % 360) - 180) <= 35)[None, :]
-        values = np.where(box, da.values, np.nan)
-        finite = np.abs(values[np.isfinite(values)])
-        limit = max(float(np.percentile(finite, 98)) if finite.size else 1.0, 0.5)
-        drawn[name] = ax.pcolormesh(lon, lat, values, cmap="RdBu_r", vmin=-limit, vmax=limit, shading="auto")
+        drawn[name] = ax.pcolormesh(lon, lat, panels[name], cmap="RdBu_r", vmin=-limit, vmax=limit,
+                                    shading="auto")
         ax.plot(case.lon, case.lat, marker="*", color="gold", markeredgecolor="black", markersize=12)
         ax.set_xlim(case.lon - 35, case.lon + 35)
         ax.set_ylim(max(-90, case.lat - 25), min(90, case.lat + 25))
         ax.set_aspect(1.0 / max(np.cos(np.deg2rad(case.lat)), 0.2))
-        ax.set_title(f"{da.attrs.get('long_name', name)[:40]}", fontsize=8)
-        fig.colorbar(drawn[name], ax=ax, shrink=0.7, label="K")
-    fig.suptitle(f"Split over {str(case.start)[:16]} to {str(case.end)[:16]} UTC at {case.level_hpa:g} hPa",
-                 fontsize=10)
+        ax.set_title(_PANEL_TITLES[name], fontsize=9)
+    fig.colorbar(drawn[names[0]], ax=axes[0].tolist(), shrink=0.8, label="K over the window")
+    fig.suptitle(f"Split over {str(case.start)[:16]} to {str(case.end)[:16]} UTC at "
+                 f"{case.level_hpa:g} hPa (guidance, not an official forecast)", fontsize=10)
     if path is not None:
         _save(fig, path)
     return drawn
