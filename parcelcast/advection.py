@@ -60,8 +60,10 @@ def advection(scalar, u, v, grid=None):
 
     Parameters
     ----------
-    scalar : xarray.DataArray (..., lat, lon)
-        Any scalar with a ``units`` attribute (temperature in K gives K s-1).
+    scalar : xarray.DataArray (..., lat, lon) or (..., y, x)
+        Any scalar with a ``units`` attribute (temperature in any unit gives K s-1).
+        Latitude and longitude may come in any order (0..360 or -180..180, north to
+        south or south to north); the result has the input's order.
     u, v : xarray.DataArray (..., lat, lon)
         Eastward/northward wind with ``units`` of speed (converted to m s-1).
     grid : LatLonGrid or ProjectedGrid, optional
@@ -77,9 +79,13 @@ def advection(scalar, u, v, grid=None):
     import xarray as xr
 
     from parcelcast.grid import grid_for
+    from parcelcast.grid.latlon import in_grid_order
     from parcelcast.units import convert
 
-    grid = grid if grid is not None else grid_for(scalar)
+    (scalar, u, v), restore = (scalar, u, v), (lambda r: r)
+    if grid is None:  # any latitude/longitude order in, the same order out
+        (scalar, u, v), restore = in_grid_order(scalar, u, v)
+        grid = grid_for(scalar)
     scalar_units = scalar.attrs.get("units")
     if not scalar_units:
         from parcelcast.errors import UnitsError
@@ -120,7 +126,7 @@ def advection(scalar, u, v, grid=None):
         result.name = f"{scalar.name}_advection"
     result.attrs["wind"] = u.attrs.get("long_name", "wind")
     result.attrs["pole_rows"] = "NaN (eastward derivative undefined)" if grid.has_pole_rows else "none"
-    return result
+    return restore(result)
 
 
 def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):

@@ -48,7 +48,12 @@ def geostrophic_wind(ds, grid=None, band_deg: float = EQUATORIAL_BAND_DEG):
     zero, one = convert([0.0, 1.0], phi.attrs.get("units"), "geopotential", "geopotential")
     if (zero, one) != (0.0, 1.0):
         phi = phi * one
-    grid = grid if grid is not None else grid_for(ds)
+    restore = lambda result: result  # noqa: E731
+    if grid is None:  # any latitude/longitude order in, the same order out
+        from parcelcast.grid.latlon import in_grid_order
+
+        (phi,), restore = in_grid_order(phi)
+        grid = grid_for(phi)
     u_g, v_g = xr.apply_ufunc(
         geostrophic_wind_array, phi,
         kwargs={"grid": grid, "band_deg": band_deg},
@@ -62,4 +67,4 @@ def geostrophic_wind(ds, grid=None, band_deg: float = EQUATORIAL_BAND_DEG):
                     "long_name": f"{std} geostrophic wind", "comment": note}
         da.name = name
     dims = [d for d in phi.dims]
-    return u_g.transpose(*dims), v_g.transpose(*dims)
+    return restore(u_g.transpose(*dims)), restore(v_g.transpose(*dims))

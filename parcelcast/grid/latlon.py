@@ -163,6 +163,34 @@ def _bracket_periodic(lon: np.ndarray, x: float):
     return i0, (i0 + 1) % n, float((rel - edges[i0]) / steps[i0])
 
 
+def in_grid_order(*arrays):
+    """Put DataArrays on a 1-D lat/lon grid in any order into the grid's order.
+
+    Returns ``(sorted_arrays, restore)``: latitude ascending, longitude contiguous and
+    ascending, and a function that puts a result back in the caller's order and
+    coordinates.  Arrays already in order (or on a projected grid) pass unchanged.
+    """
+    from parcelcast.io.coords import longitude_order
+
+    first = arrays[0]
+    if "lat" not in first.dims or "lon" not in first.dims:
+        return arrays, lambda result: result
+    lat = np.asarray(first["lat"].values, dtype=np.float64)
+    lon = np.asarray(first["lon"].values, dtype=np.float64)
+    lat_order = np.argsort(lat, kind="stable")
+    lon_order, lon_values, _ = longitude_order(lon)
+    if np.array_equal(lat_order, np.arange(lat.size)) and np.array_equal(lon_values, lon):
+        return arrays, lambda result: result
+    ordered = tuple(a.isel(lat=lat_order, lon=lon_order).assign_coords(lon=lon_values)
+                    for a in arrays)
+
+    def restore(result):
+        back = result.isel(lat=np.argsort(lat_order), lon=np.argsort(lon_order))
+        return back.assign_coords(lat=first["lat"], lon=first["lon"])
+
+    return ordered, restore
+
+
 def grid_for(ds, periodic_lon: bool | None = None):
     """Geometry of a canonical dataset: a :class:`LatLonGrid`, or a
     :class:`~parcelcast.grid.projected.ProjectedGrid` for dims ``y, x`` with a CRS.
