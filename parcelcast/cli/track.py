@@ -42,6 +42,11 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         "every member of an ensemble analysis is run as well")
     parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
                         help="advecting wind: analysed or geostrophic from geopotential")
+    parser.add_argument("--series", type=int, default=1, metavar="N",
+                        help="run N arrival (or release) times, --series-step apart, ending (or "
+                        "starting) at --start; the JSON's 'series' summarises each")
+    parser.add_argument("--series-step", type=_positive_hours, default=6.0, metavar="HOURS",
+                        help="spacing of the --series times (default 6 h)")
     parser.add_argument("--every", type=_positive_hours, default=1.0, metavar="HOURS",
                         help="spacing of the reported points (default 1 h)")
     parser.add_argument("--ground", choices=("follow", "stop"), default="follow",
@@ -79,6 +84,7 @@ def run(args) -> int:
         ds, lat, lon, Q_(args.level, "hPa"), Q_(hours, "h"), args.start,
         mode=args.mode, scheme=args.scheme, wind=args.wind, members=args.members,
         output_interval=Q_(args.every, "h"), ground=args.ground,
+        start_times=_series(ds, args, hours),
     )
     if args.out:
         write_trajectories(out, args.out)
@@ -88,6 +94,23 @@ def run(args) -> int:
     else:
         _print_text(summary, args.out)
     return 0
+
+
+def _series(ds, args, hours):
+    """The --series start times, the --start one first (None for a single time)."""
+    import numpy as np
+
+    from parcelcast.errors import ParcelcastError
+
+    if args.series < 1:
+        raise ParcelcastError(f"--series must be 1 or more, got {args.series}")
+    if args.series == 1:
+        return None
+    times = ds["time"].values
+    start = args.start if args.start is not None else (times[-1] if hours < 0 else times[0])
+    step = np.timedelta64(int(round(args.series_step * 3600)), "s")
+    sign = -1 if hours < 0 else 1  # back: earlier arrivals; ahead: later releases
+    return [np.datetime64(start, "ns") + sign * k * step for k in range(args.series)]
 
 
 def _print_text(summary: dict, path) -> None:
@@ -103,6 +126,10 @@ def _print_text(summary: dict, path) -> None:
     if n > 1:
         print(f"{n} members; spread at the end {summary['spread_km']} km "
               f"({summary['spread_fraction']} of the distance travelled)")
+    for item in summary["series"][1:]:
+        end = item["end"]
+        print(f"  also {item['time']}: {item['status']}, ends {end['lat']}, {end['lon']}, "
+              f"{end['pressure_hPa']} hPa, spread {item['spread_km']} km")
     if path:
         print(f"written: {path}")
     print(summary["disclaimer"])

@@ -183,5 +183,24 @@ def to_json_dict(ds, disclaimer: str = "") -> dict:
         "members": members,
         "spread_km": _num(sp[last[-1]] / 1000.0, 2) if last.size else None,
         "spread_fraction": _num(fr[last[-1]], 4) if last.size else None,
+        "series": [_group_summary(ds, g) for g in np.unique(grp)],
         "disclaimer": disclaimer,
+    }
+
+
+def _group_summary(ds, group: int) -> dict:
+    """One arrival (or release) time of a series: where its central path ends, and the spread."""
+    rows = np.flatnonzero(ds.start_group.values == group)
+    c = rows[np.argmax(ds.central.values[rows])]
+    end = int(ds.row_size.values[c]) - 1
+    sp = ds.spread.values[group]
+    valid = np.flatnonzero(~np.isnan(sp))
+    return {
+        "time": _iso(ds.time.values[c, 0]),
+        "status": str(ds.status_name.values[c]),
+        "end": {"time": _iso(ds.time.values[c, end]), "lat": _num(ds.lat.values[c, end]),
+                "lon": _num(ds.lon.values[c, end]),
+                "pressure_hPa": _num(ds.pressure.values[c, end] / 100.0, 2),
+                "temperature_K": _num(ds.temperature.values[c, end], 2) if "temperature" in ds else None},
+        "spread_km": _num(sp[valid[-1]] / 1000.0, 2) if valid.size else None,
     }
