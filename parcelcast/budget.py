@@ -308,12 +308,7 @@ def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: 
     # series or an area mean, which are not what the parcel's temperature measures).
     observed = euler.get("point_observed_change_members_K", [euler["point_observed_change_K"]])[0]
     eulerian_advective = euler.get("advective_members_K", [euler["advective_K"]])[0]
-    if "x" in ds.dims:  # trajectories need a lat-lon grid: say so, keep the Eulerian view
-        lagr = {"non_advective_K": None, "advective_K": None, "spread_K": None, "trajectories": 0,
-                "reached_start": 0, "origin_lat": None, "origin_lon": None, "paths": None,
-                "statuses": ["not_available: trajectories need a latitude-longitude grid"]}
-    else:
-        lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members)
+    lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members)
     lagr["observed_change_K"] = observed
     difference = None
     if lagr["advective_K"] is not None and np.isfinite(eulerian_advective):

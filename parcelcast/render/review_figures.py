@@ -72,9 +72,14 @@ def split_maps_figure(review: dict, path=None):
     case = review["case"]
     names = [n for n in _PANEL_TITLES if n in fields]
     lat, lon = fields["lat"].values, fields["lon"].values
-    near = ((np.abs(lat - case.lat) <= 25)[:, None]
-            & (np.abs(((lon - case.lon + 180) % 360) - 180) <= 35)[None, :])
-    panels = {name: np.where(near, member_mean(fields[name]).values, np.nan) for name in names}
+    lon = case.lon + (((lon - case.lon + 180.0) % 360.0) - 180.0)  # continuous around the station
+    columns = slice(None)
+    if lat.ndim == 1:  # lat-lon grid (projected grids carry 2-D coordinates already)
+        columns = np.argsort(lon, kind="stable")  # keep longitudes increasing across the cut
+        lat, lon = np.meshgrid(lat, lon[columns], indexing="ij")
+    near = (np.abs(lat - case.lat) <= 25) & (np.abs(lon - case.lon) <= 35)
+    panels = {name: np.where(near, member_mean(fields[name]).values[..., columns], np.nan)
+              for name in names}
     finite = np.abs(np.concatenate([v[np.isfinite(v)] for v in panels.values()]))
     limit = max(float(np.percentile(finite, 98)) if finite.size else 1.0, 0.5)
     fig, axes = plt.subplots(1, len(names), figsize=(3.9 * len(names), 3.8), squeeze=False,

@@ -105,11 +105,10 @@ def compute_trajectories(
     >>> str(out.status_name.values[0])
     'ok'
     """
-    if "x" in ds.dims and "y" in ds.dims:
-        raise TrajectoryError(
-            f"{ds.attrs.get('source_files', 'input')}: trajectories need a latitude-longitude "
-            "grid; this analysis is on a map-projected grid (x, y). Regrid it to latitude-"
-            "longitude first (advection, profiles and the Eulerian split work on it as it is)")
+    if "x" in ds.dims and "y" in ds.dims:  # a projected grid: run on a lat-lon copy
+        from parcelcast.grid.regrid import to_lat_lon
+
+        ds = to_lat_lon(ds)  # attrs["regridded"] says how; it travels to the output
     span_s = float(check_quantity(duration, "time", "duration"))
     p_start = float(check_quantity(level, "pressure", "level"))
     out_s = 3600.0 if output_interval is None else float(check_quantity(output_interval, "time", "output interval"))
@@ -253,6 +252,7 @@ def _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, stead
             "steady_flow": int(bool(steady)),
             "time_step_s": float(max(r.dt for r in results)),
             "source_files": ds.attrs.get("source_files", ""),
+            **({"regridded": ds.attrs["regridded"]} if "regridded" in ds.attrs else {}),
         },
     )
     for name, values in _samples(results, pad, prs).items():

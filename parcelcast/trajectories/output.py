@@ -184,6 +184,7 @@ def to_json_dict(ds, disclaimer: str = "") -> dict:
         "spread_km": _num(sp[last[-1]] / 1000.0, 2) if last.size else None,
         "spread_fraction": _num(fr[last[-1]], 4) if last.size else None,
         "series": [_group_summary(ds, g) for g in np.unique(grp)],
+        "notes": [ds.attrs["regridded"]] if "regridded" in ds.attrs else [],
         "disclaimer": disclaimer,
     }
 
