@@ -19,7 +19,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.trajectories.sphere import great_circle_distance, offset_point
+from parcelcast.grid.geometry import great_circle_distance
+from parcelcast.trajectories.sphere import offset_point
 
 
 def cloud_offsets(n: int, radius_m: float, dp_pa: float):

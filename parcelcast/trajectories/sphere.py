@@ -1,4 +1,4 @@
-"""Geometry on the sphere for trajectories: unit vectors, winds as 3-D vectors, distances.
+"""Geometry on the sphere for trajectories: unit vectors, winds as 3-D vectors, offsets.
 
 Positions are carried as 3-D Cartesian unit vectors (x towards 0 N 0 E, y towards
 0 N 90 E, z towards the North Pole).  Steps taken in these coordinates have no
@@ -11,6 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast.constants import EARTH_RADIUS
+from parcelcast.grid.geometry import great_circle_distance  # noqa: F401  (lives in grid/)
 
 
 def to_unit_vector(lat_deg, lon_deg) -> np.ndarray:
@@ -78,21 +79,6 @@ def cartesian_to_wind(vx, vy, vz, sinlat, coslat, sinlon, coslon):
     u = -vx * sinlon + vy * coslon
     v = -vx * sinlat * coslon - vy * sinlat * sinlon + vz * coslat
     return u, v
-
-
-def great_circle_distance(lat1, lon1, lat2, lon2, radius: float = EARTH_RADIUS) -> np.ndarray:
-    """Great-circle distance (m) between points in degrees, by the haversine formula.
-
-    Accurate for small and large separations except near antipodes (Sinnott 1984).
-
-    References
-    ----------
-    Sinnott, R. W. (1984). Virtues of the haversine. Sky and Telescope 68(2), 159.
-    """
-    p1, p2 = np.deg2rad(lat1), np.deg2rad(lat2)
-    dl = np.deg2rad(np.asarray(lon2, dtype=np.float64) - lon1)
-    h = np.sin((p2 - p1) / 2) ** 2 + np.cos(p1) * np.cos(p2) * np.sin(dl / 2) ** 2
-    return 2.0 * radius * np.arcsin(np.sqrt(np.clip(h, 0.0, 1.0)))
 
 
 def offset_point(lat_deg, lon_deg, north_m, east_m, radius: float = EARTH_RADIUS):

@@ -1,0 +1,180 @@
+"""The Eulerian split: the change at the station and its parts, from gridded analyses.
+
+On a pressure level (Holton and Hakim 2013, eq. 3.6 rearranged):
+
+    dT/dt = -V.grad T + omega S_p + Q/c_p,      S_p = R_d T/(c_p p) - dT/dp
+
+The observed local change over [start, end] is split into the time integral of -V.grad T
+(horizontal advection), of omega S_p (vertical motion, only where omega is in the analysis,
+else "not available", never 0) and the residual, which makes the parts add up exactly.  The
+residual is diabatic heating plus errors, plus the vertical term when it is not computed.
+:func:`eulerian_split` is the split for one station over one window from a canonical
+dataset; :func:`split_fields` gives the same parts as maps.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from parcelcast.budget.windows import (bounding_times, check_window, interpolation_weights,
+                                       linear_time_weights, weighted)
+
+
+WINDS = ("actual", "geostrophic")
+
+
+def check_wind(wind: str) -> None:
+    """Refuse a wind choice other than 'actual' or 'geostrophic' (nothing is assumed)."""
+    from parcelcast.errors import ParcelcastError
+
+    if wind not in WINDS:
+        raise ParcelcastError(f"wind {wind!r} is not known; choose one of: {', '.join(WINDS)}")
+
+
+def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
+    """The split as maps over the analysis area for the window [start, end].
+
+    Returns
+    -------
+    xarray.Dataset
+        ``observed_change``, ``advective``, ``vertical`` (absent without omega) and
+        ``residual`` in K over the window, (member,) lat, lon; attrs say how.
+    """
+    import xarray as xr
+
+    from parcelcast.advection import advection
+    from parcelcast.io.analysis import require
+    from parcelcast.selection import select_level
+
+    check_wind(wind)
+    check_window(ds, start, end)
+    require(ds, "temperature", purpose="the trend split")
+    ds = bounding_times(ds, start, end)  # compute only what the window uses
+    temperature = select_level(ds, level_hpa)["temperature"]
+    if wind == "actual":
+        require(ds, "u", "v", purpose="advection by the actual wind")
+        level = select_level(ds, level_hpa)
+        u, v = level["u"], level["v"]
+    else:
+        from parcelcast.geostrophic import geostrophic_wind
+
+        u, v = geostrophic_wind(select_level(ds[["geopotential"]], level_hpa))
+    adv = advection(temperature, u, v)
+    times = ds["time"].values
+    observed = (weighted(temperature, interpolation_weights(times, end))
+                - weighted(temperature, interpolation_weights(times, start)))
+    advective = weighted(adv, linear_time_weights(times, start, end))
+    parts = {"observed_change": observed, "advective": advective}
+    vertical = _vertical_term(ds, level_hpa)
+    if vertical is not None:
+        parts["vertical"] = weighted(vertical, linear_time_weights(times, start, end))
+        parts["residual"] = observed - advective - parts["vertical"]
+    else:
+        parts["residual"] = observed - advective
+    out = xr.Dataset(parts)
+    descriptions = {
+        "observed_change": "local temperature change over the window",
+        "advective": "time integral of horizontal advection -V.grad T",
+        "vertical": "time integral of omega * static stability (vertical motion)",
+        "residual": "observed change minus the other parts (diabatic heating and errors"
+                    + (")" if vertical is not None else "; includes the vertical term: no omega)"),
+    }
+    for name in out.data_vars:
+        out[name].attrs = {"units": "K", "long_name": descriptions[name]}
+    out.attrs = {"start": str(start)[:19], "end": str(end)[:19], "level_hPa": level_hpa,
+                 "wind": wind, "time_integration": "trapezoid over analysis times (exact for "
+                 "piecewise-linear time variation)",
+                 "source_files": ds.attrs.get("source_files", "")}
+    return out
+
+
+def _vertical_term(ds, level_hpa: float):
+    """omega * S_p (K s-1) on the level, or None when the analysis has no omega."""
+    if "omega" not in ds.data_vars or "level" not in ds.dims or ds.sizes["level"] < 2:
+        return None
+    import xarray as xr
+
+    from parcelcast.selection import select_level
+    from parcelcast.thermo import static_stability
+
+    stability = xr.apply_ufunc(
+        static_stability, ds["temperature"], ds["level"],
+        input_core_dims=[["level"], ["level"]], output_core_dims=[["level"]],
+        dask="parallelized", output_dtypes=[np.float64],
+        dask_gufunc_kwargs={"allow_rechunk": True},  # dT/dp needs whole columns
+    ).transpose(*ds["temperature"].dims)
+    term = select_level(xr.Dataset({"w": ds["omega"] * stability}), level_hpa)["w"]
+    term.attrs = {"units": "K s-1", "long_name": "omega times static stability"}
+    return term
+
+
+def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
+                   wind: str = "actual", radius_km: float | None = None, station=None) -> dict:
+    """The Eulerian split at a point (bilinear) or over a radius around it.
+
+    ``station`` (a :class:`parcelcast.io.station.StationSeries`) replaces the analysed
+    observed change by the station's own; the residual then also holds the difference
+    between the station and the analysis level (said in ``residual_note``).
+    Values are member means where the analysis has members (``*_members_K`` lists each;
+    a missing member makes the mean missing).  ``point_observed_change_K`` (and its
+    members) is always the analysed change at the point itself, for the Lagrangian view.
+    """
+    import xarray as xr
+
+    from parcelcast.sampling import value_at
+
+    fields = split_fields(ds, level_hpa, start, end, wind)
+    at, area = _at_station(fields, lat, lon, radius_km)
+    parts = {name: at[name] for name in at.data_vars}
+    result = {"observed_source": "analysis",
+              "residual_note": "diabatic heating and errors"
+              + ("" if "vertical" in parts else ", and the vertical term (no omega)")}
+    point = value_at(fields["observed_change"], lat, lon)
+    result.update(_values("point_observed_change_K", point))
+    if station is not None:
+        observed = station.value_at(end) - station.value_at(start)
+        result["observed_source"] = f"station series {station.source}"
+        result["station_gaps"] = station.gap_text()
+        result["residual_note"] += (", and the difference between the station series and the "
+                                    f"{level_hpa:g} hPa analysis")
+        parts["observed_change"] = xr.full_like(parts["advective"], observed)
+        others = parts["advective"] + (parts["vertical"] if "vertical" in parts else 0.0)
+        parts["residual"] = parts["observed_change"] - others
+    for name, key in (("observed_change", "observed_change_K"), ("advective", "advective_K"),
+                      ("vertical", "vertical_K"), ("residual", "residual_K")):
+        if name in parts:
+            result.update(_values(key, parts[name]))
+        else:
+            result[key] = None
+    result["vertical_available"] = "vertical" in parts
+    if area is not None:
+        result["area"] = area
+    return result
+
+
+def _values(key: str, value) -> dict:
+    """``{key: member mean}`` plus ``{key_members: [...]}`` when there are members."""
+    from parcelcast.selection import member_mean
+
+    out = {key: float(member_mean(value))}
+    if "member" in value.dims:
+        out[key.replace("_K", "_members_K")] = [float(x) for x in value.values]
+    return out
+
+
+def _at_station(fields, lat, lon, radius_km):
+    """The parts at the point, or their area means over one common set of grid points
+    (a point missing in any part is left out of every part, so the parts still add up)."""
+    from parcelcast.sampling import area_mean, value_at
+
+    if radius_km is None:
+        return value_at(fields, lat, lon), None
+    import xarray as xr
+
+    valid = None
+    for name in fields.data_vars:
+        valid = fields[name].notnull() if valid is None else valid & fields[name].notnull()
+    means, info = {}, None
+    for name in fields.data_vars:
+        means[name], info = area_mean(fields[name].where(valid), lat, lon, radius_km=radius_km)
+    return xr.Dataset(means), info

@@ -1,0 +1,86 @@
+"""Which analysis times a window uses, and with what weights.
+
+A window [start, end] rarely falls on analysis times.  These helpers check that the
+analyses cover it, keep only the analysis times it needs, and give the weights that turn
+values at analysis times into a value at one time (linear interpolation) or into a time
+integral (the trapezoid rule of the piecewise-linear interpolant).  Times are
+``datetime64``; weights are in seconds for integrals and dimensionless for interpolation.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from parcelcast.errors import SelectionError
+
+
+def _seconds_from(times, origin) -> np.ndarray:
+    return (np.asarray(times, dtype="datetime64[ns]") - np.datetime64(origin, "ns")) / np.timedelta64(1, "s")
+
+
+def linear_time_weights(times, start, end) -> np.ndarray:
+    """Weights w_i (s) with  sum_i w_i f(t_i) = integral of the piecewise-linear f over [start, end].
+
+    The trapezoid rule for a quantity known only at ``times`` (ascending datetime64); where
+    the window starts or ends between two times, the interpolant is cut there.  The window
+    must lie inside ``times``.
+    """
+    t = _seconds_from(times, start)
+    e = (np.datetime64(end, "ns") - np.datetime64(start, "ns")) / np.timedelta64(1, "s")
+    weights = np.zeros(t.size)
+    for k in range(t.size - 1):
+        a, b = max(t[k], 0.0), min(t[k + 1], e)
+        if b <= a:
+            continue
+        h = t[k + 1] - t[k]
+        weights[k] += ((t[k + 1] - a) ** 2 - (t[k + 1] - b) ** 2) / (2.0 * h)
+        weights[k + 1] += ((b - t[k]) ** 2 - (a - t[k]) ** 2) / (2.0 * h)
+    return weights
+
+
+def interpolation_weights(times, when) -> np.ndarray:
+    """Weights giving the linear interpolation in time at ``when`` (they sum to 1)."""
+    t = _seconds_from(times, when)
+    weights = np.zeros(t.size)
+    hit = np.flatnonzero(t == 0.0)
+    if hit.size:
+        weights[hit[0]] = 1.0
+        return weights
+    k = int(np.searchsorted(t, 0.0) - 1)
+    h = t[k + 1] - t[k]
+    weights[k] = t[k + 1] / h
+    weights[k + 1] = -t[k] / h
+    return weights
+
+
+def check_window(ds, start, end) -> None:
+    """Refuse a window that is empty, reversed or not covered by the analysis times."""
+    source = ds.attrs.get("source_files", "")
+    if "time" not in ds.dims:
+        raise SelectionError("window", f"{str(start)[:16]} to {str(end)[:16]} UTC",
+                             "nothing: the analysis has no time coordinate", source)
+    times = ds["time"].values
+    if not np.datetime64(end, "ns") > np.datetime64(start, "ns"):
+        raise SelectionError("window", f"{str(start)[:16]} to {str(end)[:16]}",
+                             "a window whose end is after its start", source)
+    if np.datetime64(start, "ns") < times[0] or np.datetime64(end, "ns") > times[-1]:
+        raise SelectionError("window", f"{str(start)[:16]} to {str(end)[:16]} UTC",
+                             f"analysis times {str(times[0])[:16]} to {str(times[-1])[:16]} UTC", source)
+
+
+def bounding_times(ds, start, end):
+    """The analysis times from the last one at or before ``start`` to the first at or after ``end``."""
+    times = ds["time"].values
+    first = int(np.searchsorted(times, np.datetime64(start, "ns"), side="right") - 1)
+    last = int(np.searchsorted(times, np.datetime64(end, "ns"), side="left"))
+    return ds.isel(time=slice(max(first, 0), last + 1))
+
+
+def weighted(da, weights):
+    """sum_i w_i da(t_i) over the times that count (a NaN outside the window does not
+    reach the result; a NaN inside it does: missing stays missing)."""
+    import xarray as xr
+
+    used = np.flatnonzero(weights)
+    w = xr.DataArray(weights[used], dims="time", coords={"time": da["time"].values[used]})
+    return (da.isel(time=used) * w).sum("time", skipna=False)
