@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import html
 
+from parcelcast.budget.consistency import verdict
 from parcelcast.cli import DISCLAIMER
 
 FIGURES = (("timeline.png", "Split of the change at the station, accumulated from the start"),
@@ -29,9 +30,10 @@ def summary_rows(review: dict) -> list[tuple[str, str]]:
         ("Lagrangian advective part", _k(lg["advective_K"])),
         ("Spread of the Lagrangian estimate", _k(lg["spread_K"])),
     ]
-    if review["advective_difference_K"] is not None:
-        rows.append(("Eulerian minus Lagrangian advective part (same member)",
-                     _k(review["advective_difference_K"])))
+    c = review["consistency"]
+    rows.append((f"Eulerian minus Lagrangian advective part ({c['footing']})",
+                 _k(c["eulerian_minus_lagrangian_K"])))
+    rows.append(("Do the two views agree?", verdict(c)))
     return rows
 
 
@@ -65,13 +67,17 @@ def markdown(review: dict) -> str:
     for row in review["timeline"]:
         lines.append(f"| {str(row['time'])[:16]} | {_k(row['observed_change_K'])} | "
                      f"{_k(row['advective_K'])} | {_k(row['vertical_K'])} | {_k(row['residual_K'])} |")
+    c = review["consistency"]
+    lines += ["", "## Do the two views agree?", "", c["meaning"], ""]
+    lines += [f"- {w}" for w in c["warnings"]]
     lines += ["", "## Figures", ""]
     lines += [f"![{caption}]({name})" for name, caption in FIGURES]
     lines += ["", "## Method", "",
               "Advective part: -V.grad T on the sphere, integrated in time by the trapezoid rule over "
               "analysis times. Vertical part: omega times the static stability R_d T/(c_p p) - dT/dp "
               "(not available without omega). Residual: what remains, i.e. diabatic heating "
-              "(sunshine, cloud, evaporation, radiation) plus errors. Lagrangian view: isobaric back "
+              "(sunshine, cloud, evaporation, radiation) plus errors, plus the vertical-motion part "
+              "when omega is not available. Lagrangian view: isobaric back "
               "trajectories; the temperature change following the air is the non-advective part.", ""]
     return "\n".join(lines)
 
@@ -95,6 +101,8 @@ table{{border-collapse:collapse}}td,th{{border:1px solid #ccd;padding:.2em .6em}
 <p>Station <b>{html.escape(case.station_name)}</b> ({case.lat:.2f} N, {case.lon:.2f} E), {case.level_hpa:g} hPa,
 {str(case.start)[:16]} to {str(case.end)[:16]} UTC, {html.escape(case.wind)} wind.</p>
 <table><tr><th>quantity</th><th>value</th></tr>{rows}</table>
+<h2>Do the two views agree?</h2><p>{html.escape(review["consistency"]["meaning"])}</p>
+<ul>{"".join(f"<li>{html.escape(w)}</li>" for w in review["consistency"]["warnings"])}</ul>
 <h2>Timeline</h2><table><tr><th>time (UTC)</th><th>observed</th><th>advective</th><th>vertical</th>
 <th>residual</th></tr>{timeline}</table><h2>Figures</h2>{figures}</body></html>
 """

@@ -119,4 +119,5 @@ def build_review(case: Case, ds=None) -> dict:
     fields = split_fields(ds, case.level_hpa, case.start, case.end, case.wind)
     return {"case": case, "timeline": timeline, "eulerian": whole, "lagrangian": lagr,
             "advective_difference_K": split["advective_difference_K"],
+            "consistency": split["consistency"],
             "trajectories": trajectories, "fields": fields}

@@ -85,25 +85,25 @@ def test_eulerian_and_lagrangian_compared(splits):
               f"{lg['advective_K']:9.3f} {out['advective_difference_K']:9.3f} {lg['spread_K']:10.3f}")
         assert lg["reached_start"] == lg["trajectories"] == 30  # 10 members x 3 starts
         assert lg["statuses"] == ["ok"]
-        # like with like: the Lagrangian split follows member 0, so it is compared with
-        # member 0's Eulerian advective part
+        # like with like (issue 13): both parts are means over the same 10 members
+        assert out["consistency"]["footing"] == "ensemble mean of 10 members"
+        assert lg["advective_K"] == pytest.approx(np.mean(lg["advective_members_K"]), abs=1e-12)
         assert out["advective_difference_K"] == pytest.approx(
-            e["advective_members_K"][0] - lg["advective_K"], abs=1e-12)
+            e["advective_K"] - lg["advective_K"], abs=1e-12)
         assert np.isfinite(out["advective_difference_K"])
         assert lg["spread_K"] > 0.0
 
 
 @pytest.mark.parametrize("name", list(STATIONS))
-def test_lagrangian_parts_add_up_for_the_member_followed(splits, name):
-    # lagrangian_split's docstring: non_advective_K and advective_K come from the unperturbed
-    # trajectory of the *first analysis member*.  Its two parts should then add up to that
-    # member's observed change (the Eulerian split gives it per member), not the member mean.
+def test_lagrangian_parts_add_up_for_each_member_followed(splits, name):
+    # lagrangian_split's docstring: each analysis member's unperturbed trajectory gives that
+    # member's parts, which add up to that member's observed change at the point; the reported
+    # parts are their means and add up to the mean observed change.
     e, lg = splits[name]["eulerian"], splits[name]["lagrangian"]
-    paths = lg["paths"]
-    first = np.flatnonzero(paths["central"].values)[0]
-    assert paths["analysis_member"].values[first] == 0
-    member0_observed = e["observed_change_members_K"][0]
-    assert lg["non_advective_K"] + lg["advective_K"] == pytest.approx(member0_observed, abs=1e-9)
+    observed = np.array(e["observed_change_members_K"])
+    np.testing.assert_allclose(np.array(lg["non_advective_members_K"]) + lg["advective_members_K"],
+                               observed, rtol=0, atol=1e-9)
+    assert lg["non_advective_K"] + lg["advective_K"] == pytest.approx(observed.mean(), abs=1e-9)
 
 
 def test_per_member_lagrangian_values(splits):
@@ -122,6 +122,7 @@ def test_per_member_lagrangian_values(splits):
         print(f"{name:18s} Lagrangian " + " ".join(f"{x:6.2f}" for x in lag_adv))
         print(f"{'':18s} Eulerian   " + " ".join(f"{x:6.2f}" for x in eul_adv))
         assert central.size == 10 and np.all(np.isfinite(lag_adv))
+        np.testing.assert_allclose(out["lagrangian"]["advective_members_K"], lag_adv, rtol=0, atol=1e-9)
         # the spread reported covers the member-to-member spread of the non-advective part
         assert out["lagrangian"]["spread_K"] >= 0.5 * np.std(non_adv)
 

@@ -155,4 +155,7 @@ def test_text_output_has_disclaimer(files, capsys):
     assert rc == 0
     assert "n/a" in captured.out  # vertical term not available
     assert "not an official forecast" in captured.out
-    assert np.isfinite(float(captured.out.split("residual (diabatic)")[1].split("K")[0]))
+    assert "(diabatic)" not in captured.out  # the residual is never "diabatic" alone (issue 13)
+    residual = captured.out.split("residual ")[1]
+    assert np.isfinite(float(residual.split("K")[0]))
+    assert "diabatic heating plus errors, plus the vertical-motion term (not computed" in residual

@@ -5,7 +5,8 @@ Modules, one job each:
 * :mod:`~parcelcast.budget.windows`: which analysis times a window uses, and their weights;
 * :mod:`~parcelcast.budget.eulerian`: the split at the station (and as maps) from the analyses;
 * :mod:`~parcelcast.budget.lagrangian`: the split following the air (back trajectories);
-* :mod:`~parcelcast.budget.trend`: both views side by side;
+* :mod:`~parcelcast.budget.consistency`: how far the two views agree, and the split's warnings;
+* :mod:`~parcelcast.budget.trend`: both views side by side, with their consistency;
 * :mod:`~parcelcast.budget.guidance`: station guidance for the next hours.
 
 See ``design_notes/trend_split.md`` for the method.

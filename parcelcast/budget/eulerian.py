@@ -21,6 +21,9 @@ from parcelcast.budget.windows import (bounding_times, check_window, interpolati
 
 
 WINDS = ("actual", "geostrophic")
+#: what the residual holds: never "diabatic" alone
+RESIDUAL_NOTE = "diabatic heating plus errors"
+RESIDUAL_NOTE_NO_OMEGA = ", plus the vertical-motion term (not computed: no omega)"
 
 
 def check_wind(wind: str) -> None:
@@ -76,8 +79,8 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
         "observed_change": "local temperature change over the window",
         "advective": "time integral of horizontal advection -V.grad T",
         "vertical": "time integral of omega * static stability (vertical motion)",
-        "residual": "observed change minus the other parts (diabatic heating and errors"
-                    + (")" if vertical is not None else "; includes the vertical term: no omega)"),
+        "residual": "observed change minus the other parts: " + RESIDUAL_NOTE
+                    + ("" if vertical is not None else RESIDUAL_NOTE_NO_OMEGA),
     }
     for name in out.data_vars:
         out[name].attrs = {"units": "K", "long_name": descriptions[name]}
@@ -116,8 +119,9 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     observed change by the station's own; the residual then also holds the difference
     between the station and the analysis level (said in ``residual_note``).
     Values are member means where the analysis has members (``*_members_K`` lists each;
-    a missing member makes the mean missing).  ``point_observed_change_K`` (and its
-    members) is always the analysed change at the point itself, for the Lagrangian view.
+    a missing member makes the mean missing).  ``point_observed_change_K`` and
+    ``point_advective_K`` (and their members) are always the analysed values at the point
+    itself, for the comparison with the Lagrangian view.
     """
     import xarray as xr
 
@@ -127,15 +131,16 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     at, area = _at_station(fields, lat, lon, radius_km)
     parts = {name: at[name] for name in at.data_vars}
     result = {"observed_source": "analysis",
-              "residual_note": "diabatic heating and errors"
-              + ("" if "vertical" in parts else ", and the vertical term (no omega)")}
-    point = value_at(fields["observed_change"], lat, lon)
-    result.update(_values("point_observed_change_K", point))
+              "residual_note": RESIDUAL_NOTE
+              + ("" if "vertical" in parts else RESIDUAL_NOTE_NO_OMEGA)}
+    point = value_at(fields[["observed_change", "advective"]], lat, lon)
+    result.update(_values("point_observed_change_K", point["observed_change"]))
+    result.update(_values("point_advective_K", point["advective"]))
     if station is not None:
         observed = station.value_at(end) - station.value_at(start)
         result["observed_source"] = f"station series {station.source}"
         result["station_gaps"] = station.gap_text()
-        result["residual_note"] += (", and the difference between the station series and the "
+        result["residual_note"] += (", plus the difference between the station series and the "
                                     f"{level_hpa:g} hPa analysis")
         parts["observed_change"] = xr.full_like(parts["advective"], observed)
         others = parts["advective"] + (parts["vertical"] if "vertical" in parts else 0.0)

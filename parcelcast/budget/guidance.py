@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.budget.eulerian import eulerian_split
+from parcelcast.budget.consistency import summary
+from parcelcast.budget.trend import trend_split
 from parcelcast.constants import SECONDS_PER_HOUR
 
 
@@ -16,7 +17,9 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
     temperature found now where a steady-flow back trajectory of the lead time starts;
     (d) where the analyses reach 24 h back, (a) plus the diurnal course: the non-advective
     change (residual and vertical part) of the same hours yesterday; (c) the top temperature
-    from the analysis column (common practice).  Each entry says what it assumes.
+    from the analysis column (common practice).  Each entry says what it assumes.  (d) is
+    built on a split, so its entry carries that split's ``consistency`` (both views, see
+    :mod:`parcelcast.budget.consistency`) and ``warnings`` saying when it is inconsistent.
     """
     from parcelcast.advection import advection_on_level
     from parcelcast.sampling import value_at
@@ -37,14 +40,17 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
         last = int(paths["row_size"].values[0]) - 1
         status = str(paths["status_name"].values[0])
         upstream = float(paths["temperature"].values[0, last]) if status == "ok" else None
+        diurnal, built_on = _with_diurnal_course(ds, lat, lon, level_hpa, now, lead, wind,
+                                                 t_now + adv_now * lead)
         out.append({
             "lead_h": lead,
             "valid": str(now + np.timedelta64(int(round(lead * 60)), "m"))[:16] + "Z",
             "advective_extrapolation_K": t_now + adv_now * lead,
             "upstream_K": upstream,
             "upstream_status": status,
-            "with_diurnal_course_K": _with_diurnal_course(ds, lat, lon, level_hpa, now, lead, wind,
-                                                          t_now + adv_now * lead),
+            "with_diurnal_course_K": diurnal,
+            "diurnal_course_split": built_on,
+            "warnings": _warnings(built_on),
         })
     out.append(_top_temperature(ds, lat, lon, now))
     return [{"now_K": t_now, "advection_now_K_per_h": adv_now,
@@ -59,15 +65,30 @@ def station_guidance(ds, lat: float, lon: float, level_hpa: float, leads_h=(6, 1
 
 
 def _with_diurnal_course(ds, lat, lon, level_hpa, now, lead, wind, advective_estimate):
-    """Advective extrapolation plus yesterday's non-advective change over the same hours."""
+    """Advective extrapolation plus yesterday's non-advective change over the same hours,
+    and the split it is built on (window and consistency); ``(None, None)`` where the
+    analyses do not reach back far enough."""
     day = np.timedelta64(24, "h")
     start = now - day
     end = start + np.timedelta64(int(round(lead * 60)), "m")
     if lead > 24 or start < ds["time"].values[0]:
-        return None
-    split = eulerian_split(ds, lat, lon, level_hpa, start, end, wind)
-    non_advective = split["residual_K"] + (split["vertical_K"] or 0.0)
-    return advective_estimate + non_advective if np.isfinite(non_advective) else None
+        return None, None
+    # one unperturbed trajectory per analysis member is all the consistency figure needs
+    split = trend_split(ds, lat, lon, level_hpa, start, end, wind, members=1)
+    euler = split["eulerian"]
+    non_advective = euler["residual_K"] + (euler["vertical_K"] or 0.0)
+    built_on = {"start": start, "end": end, "residual_holds": euler["residual_note"],
+                "consistency": split["consistency"]}
+    value = advective_estimate + non_advective if np.isfinite(non_advective) else None
+    return value, built_on
+
+
+def _warnings(built_on) -> list[str]:
+    """Say when the diurnal-course guidance rests on a split whose two views disagree."""
+    if built_on is None or built_on["consistency"]["consistent"] is not False:
+        return []
+    return ["the diurnal-course guidance is built on an inconsistent split: "
+            + summary(built_on["consistency"])]
 
 
 def _top_temperature(ds, lat: float, lon: float, now) -> dict:

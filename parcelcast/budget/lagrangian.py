@@ -3,25 +3,41 @@
 A back trajectory from the station at ``end`` to ``start`` on the pressure level.  The
 change following the parcel, T(station, end) - T(origin, start), is the non-advective part
 (omega S_p + Q/c_p integrated along the path); the advective part is the observed change
-minus it.  The cloud of starts and the members of an ensemble analysis give a spread.
+minus it.  Each analysis member has its own unperturbed trajectory; the reported parts are
+their mean (the footing of the Eulerian parts).  The cloud of starts and the members give
+a spread.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
+from parcelcast.budget.consistency import footing
+
 
 def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
-                     observed_change: float, wind: str = "actual", members: int = 5,
+                     observed_change, wind: str = "actual", members: int = 5,
                      scheme: str = "petterssen") -> dict:
     """The Lagrangian split from isobaric back trajectories arriving at ``end``.
+
+    Parameters
+    ----------
+    observed_change : float or sequence of float
+        The analysed change at the point (K): one value per analysis member, or one value
+        used for every member.
+    members : int
+        Trajectories in the cloud of starts of each analysis member.
 
     Returns
     -------
     dict
-        ``non_advective_K`` and ``advective_K`` (unperturbed trajectory of the first
-        analysis member), ``spread_K`` (standard deviation of the non-advective part over
-        all trajectories that reached ``start``), ``trajectories`` used and their statuses.
+        ``non_advective_K`` and ``advective_K``: means over the analysis members of the
+        parts along each member's unperturbed trajectory (None when any of them did not
+        reach ``start``: missing stays missing); ``*_members_K`` lists per member when the
+        analysis has members; ``footing`` says which; ``spread_K`` (standard deviation of
+        the non-advective part over all trajectories that reached ``start``),
+        ``trajectories`` used, ``reached_start``, their statuses, the origin of the first
+        member's unperturbed trajectory and the ``paths``.
     """
     from parcelcast.trajectories import compute_trajectories
     from parcelcast.units import Q_
@@ -37,12 +53,17 @@ def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     origin_time = paths["time"].values[index, last]
     reached = (paths["status_name"].values == "ok") & (origin_time == np.datetime64(start, "ns"))
     change = np.where(reached, arrival_t - origin_t, np.nan)
+    unperturbed = np.flatnonzero(paths["cloud_member"].values == 0)
+    unperturbed = unperturbed[np.argsort(paths["analysis_member"].values[unperturbed])]
+    non_advective = change[unperturbed]
+    observed = np.broadcast_to(np.asarray(observed_change, dtype=np.float64), non_advective.shape)
+    advective = observed - non_advective
     central = int(np.flatnonzero(paths["central"].values)[0])
-    non_advective = float(change[central])
     usable = change[np.isfinite(change)]
-    return {
-        "non_advective_K": non_advective if np.isfinite(non_advective) else None,
-        "advective_K": (observed_change - non_advective) if np.isfinite(non_advective) else None,
+    out = {
+        "non_advective_K": _mean_or_none(non_advective),
+        "advective_K": _mean_or_none(advective),
+        "footing": footing(unperturbed.size if "member" in ds.dims else None),
         "spread_K": float(np.std(usable)) if usable.size > 1 else None,
         "trajectories": int(paths.sizes["trajectory"]),
         "reached_start": int(reached.sum()),
@@ -51,3 +72,16 @@ def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         "origin_lon": float(paths["lon"].values[central, last[central]]),
         "paths": paths,
     }
+    if "member" in ds.dims:
+        out["non_advective_members_K"] = [_number_or_none(x) for x in non_advective]
+        out["advective_members_K"] = [_number_or_none(x) for x in advective]
+    return out
+
+
+def _number_or_none(x) -> float | None:
+    return float(x) if np.isfinite(x) else None
+
+
+def _mean_or_none(values: np.ndarray) -> float | None:
+    """Mean of the members; None if any is missing (no member is silently dropped)."""
+    return float(np.mean(values)) if values.size and np.all(np.isfinite(values)) else None

@@ -43,6 +43,7 @@ def run(args) -> int:
     summary = dict(review["eulerian"])
     summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
     summary["advective_difference_K"] = review["advective_difference_K"]
+    summary["consistency"] = review["consistency"]
     summary["disclaimer"] = DISCLAIMER
     write_text(out / "review.json", json.dumps(jsonable(summary), indent=2, allow_nan=False) + "\n")
     write_text(out / "report.md", markdown(review))

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import argparse
 
-from parcelcast.cli._common import add_input_arguments, iso_utc, json_number, lat_lon, print_json, utc_time
+from parcelcast.cli._common import (add_input_arguments, iso_utc, json_number, jsonable, lat_lon, print_json,
+                                    utc_time)
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -47,7 +48,7 @@ def run(args) -> int:
     if args.guidance:
         from parcelcast.budget import station_guidance
 
-        summary["guidance"] = station_guidance(ds, *args.at, args.level, wind=args.wind)
+        summary["guidance"] = jsonable(station_guidance(ds, *args.at, args.level, wind=args.wind))
     summary["disclaimer"] = DISCLAIMER
     if args.json:
         print_json(summary)
@@ -76,10 +77,12 @@ def to_json(result: dict, args) -> dict:
         "advective_K": advective,
         "vertical_K": vertical,
         "residual_K": residual,
+        "residual_holds": euler["residual_note"],
         "observed_source": euler["observed_source"],
         "lagrangian": {
-            "followed": "the unperturbed trajectory of the first analysis member; its spread "
+            "followed": "the unperturbed trajectory of each analysis member; its spread "
                         "covers the cloud of starts and all members",
+            "footing": lagr["footing"],
             "observed_change_K": json_number(lagr["observed_change_K"], 4),
             "non_advective_K": json_number(lagr["non_advective_K"], 4),
             "advective_K": json_number(lagr["advective_K"], 4),
@@ -89,6 +92,7 @@ def to_json(result: dict, args) -> dict:
             "statuses": lagr["statuses"],
             "origin": {"lat": json_number(lagr["origin_lat"], 3), "lon": json_number(lagr["origin_lon"], 3)},
         },
+        "consistency": jsonable(result["consistency"]),
         "advective_difference_K": json_number(result["advective_difference_K"], 4),
         "notes": [
             "advective = time integral of -V.grad T (trapezoid over analysis times)",
@@ -96,7 +100,8 @@ def to_json(result: dict, args) -> dict:
             + ("" if euler["vertical_available"] else ": not available (no omega in the input)"),
             f"residual = observed - advective - vertical: {euler['residual_note']}",
             "lagrangian: the analysed change at the point, split following the unperturbed "
-            "trajectory of the first analysis member",
+            "trajectory of each analysis member (member mean)",
+            "advective_difference_K = consistency.eulerian_minus_lagrangian_K",
         ],
     }
     for key in ("observed_change_members_K", "advective_members_K", "residual_members_K"):
@@ -109,6 +114,14 @@ def to_json(result: dict, args) -> dict:
     return out
 
 
+def consistency_lines(c: dict) -> list[str]:
+    """The consistency figure and verdict, the warnings and what the two views mean, as text."""
+    from parcelcast.budget.consistency import summary
+
+    return ([f"  {summary(c)}"] + [f"  warning: {w}" for w in c["warnings"]]
+            + [f"  note: {c['meaning']}"])
+
+
 def print_text(s: dict) -> None:
     def f(x):
         return "n/a" if x is None else f"{x:+.2f} K"
@@ -118,11 +131,11 @@ def print_text(s: dict) -> None:
         f"  observed change        {f(s['observed_change_K'])}   ({s['observed_source']})",
         f"  advective (Eulerian)   {f(s['advective_K'])}",
         f"  vertical motion        {f(s['vertical_K'])}",
-        f"  residual (diabatic)    {f(s['residual_K'])}",
-        f"  Lagrangian: non-advective {f(s['lagrangian']['non_advective_K'])}, advective "
+        f"  residual               {f(s['residual_K'])}   ({s['residual_holds']})",
+        f"  Lagrangian ({s['lagrangian']['footing']}): non-advective "
+        f"{f(s['lagrangian']['non_advective_K'])}, advective "
         f"{f(s['lagrangian']['advective_K'])}, spread {f(s['lagrangian']['spread_K'])}",
-        f"  Eulerian minus Lagrangian advective part: {f(s['advective_difference_K'])}",
-    ]
+    ] + consistency_lines(s["consistency"])
     for item in s.get("guidance", [])[1:]:
         if "lead_h" in item:
             up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"
@@ -130,6 +143,7 @@ def print_text(s: dict) -> None:
             lines.append(f"  guidance +{item['lead_h']} h: advective extrapolation "
                          f"{item['advective_extrapolation_K']:.1f} K, upstream {up}"
                          + ("" if diurnal is None else f", with yesterday's diurnal course {diurnal:.1f} K"))
+            lines += [f"    warning: {w}" for w in item["warnings"]]
         elif item.get("top_temperature"):
             lines.append(f"  top temperature (mixing down, common practice): "
                          f"{item['top_temperature']['temperature_K']:.1f} K")
