@@ -73,8 +73,8 @@ def markdown(review: dict) -> str:
     lines += ["", "## Figures", ""]
     lines += [f"![{caption}]({name})" for name, caption in FIGURES]
     lines += ["", "## Method", "",
-              "Advective part: -V.grad T on the sphere, integrated in time by the trapezoid rule over "
-              "analysis times. Vertical part: omega times the static stability R_d T/(c_p p) - dT/dp "
+              "Advective part: -V.grad T on the sphere of the fields interpolated linearly in time "
+              "between analyses, integrated by Simpson's rule on each piece between analysis times. Vertical part: omega times the static stability R_d T/(c_p p) - dT/dp "
               "(not available without omega). Residual: what remains, i.e. diabatic heating "
               "(sunshine, cloud, evaporation, radiation) plus errors, plus the vertical-motion part "
               "when omega is not available. Lagrangian view: isobaric back "

@@ -25,9 +25,10 @@ Derivation (by hand, the second route):
 Error budget and tolerance (what is *not* exact)
 -----------------------------------------------
 The advection at the station f(s) = -G_LON Omega(s) - G_LAT V0/a varies sinusoidally in
-time, and the analyses sample it every h seconds.  The split integrates the piecewise-linear
-interpolant of f (trapezoid over analysis times), and takes T at window ends between analysis
-times by linear interpolation.  Standard linear-interpolation error bound
+time, and the analyses sample it every h seconds.  The split integrates -V.grad T of the
+fields interpolated linearly in time; here the gradient is constant, so that integrand is
+the piecewise-linear interpolant of f (Simpson's rule on it equals the trapezoid rule over
+analysis times), and T at window ends between analysis times is interpolated linearly.  Standard linear-interpolation error bound
 (|f - I_h f| <= h^2/8 max|f''|; e.g. Sueli & Mayers 2003, "An Introduction to Numerical
 Analysis", Thm 6.2 with n = 1):
 

@@ -7,7 +7,7 @@ and one-sided differences reproduce exactly).  Constants (recalled from memory, 
 and c_p = 1004 J kg-1 K-1 (Bolton 1980; Wallace & Hobbs 2006).  Note: CODATA 2018 R* over
 M_d = 28.9647 g/mol, as the comment in parcelcast/constants.py states, gives 287.055, not
 287.047 (a 3e-5 relative slip in that comment; the value itself is the conventional one).
-Omega constant or linear in time, so the trapezoid rule is exact and the tolerance is rounding.
+Omega constant or linear in time, so the time integration is exact and the tolerance is rounding.
 """
 
 from __future__ import annotations

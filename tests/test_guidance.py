@@ -3,7 +3,7 @@
 The demo's diabatic heating H(t) repeats every 24 h (`parcelcast.demo.diurnal_heating`), so
 "yesterday's non-advective change over the same hours" must equal H(now + lead) - H(now):
 a check of the diurnal-course guidance against the formula that built the atmosphere.
-Tolerance: the Eulerian residual of 3-hourly fields carries the trapezoid error, measured at
+Tolerance: the Eulerian residual of 3-hourly fields carries the time-interpolation error, measured at
 about 0.04 K over a day in `case_studies/demo` (0.41 vs 0.38 K); 0.08 K allows twice that.
 """
 

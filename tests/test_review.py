@@ -3,7 +3,7 @@
 Checks: every output is written; review.json is strict JSON (no NaN); the report carries
 the guidance notice; the timeline's parts add up to the observed change at every time
 (the residual's definition); on the invented demo, the residual over the window matches
-the heating the demo imposes (`parcelcast.demo.diurnal_heating`) within the trapezoid error
+the heating the demo imposes (`parcelcast.demo.diurnal_heating`) within the time-interpolation error
 of 3-hourly fields (0.05 K; measured 0.03 K).
 """
 

@@ -16,14 +16,16 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.budget.windows import (bounding_times, check_window, interpolation_weights,
-                                       linear_time_weights, weighted)
+from parcelcast.budget.windows import (bounding_times, check_window, interpolate_in_time,
+                                       interpolation_weights, simpson_nodes, weighted)
 
 
 WINDS = ("actual", "geostrophic")
 #: what the residual holds: never "diabatic" alone
 RESIDUAL_NOTE = "diabatic heating plus errors"
 RESIDUAL_NOTE_NO_OMEGA = ", plus the vertical-motion term (not computed: no omega)"
+TIME_INTEGRATION = ("fields interpolated linearly in time between analyses; Simpson's rule on "
+                    "each piece of the window between analysis times (exact for the products)")
 
 
 def check_wind(wind: str) -> None:
@@ -36,6 +38,11 @@ def check_wind(wind: str) -> None:
 
 def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     """The split as maps over the analysis area for the window [start, end].
+
+    Time integration: temperature, wind and omega are interpolated linearly in time between
+    analyses; the advection -V.grad T and omega S_p of the interpolated fields are integrated
+    by Simpson's rule on each piece of the window between analysis times, which is exact
+    for these products (quadratic in time, see :mod:`parcelcast.budget.windows`).
 
     Returns
     -------
@@ -61,16 +68,21 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     else:
         from parcelcast.geostrophic import geostrophic_wind
 
-        u, v = geostrophic_wind(select_level(ds[["geopotential"]], level_hpa))
-    adv = advection(temperature, u, v)
+        u, v = geostrophic_wind(select_level(ds[["geopotential"]], level_hpa))  # linear in z
     times = ds["time"].values
+    nodes, node_weights = simpson_nodes(times, start, end)
+
+    def integral(*factors):
+        return weighted(factors[0] if len(factors) == 1 else factors[0] * factors[1], node_weights)
+
+    adv = advection(*(interpolate_in_time(x, nodes) for x in (temperature, u, v)))
     observed = (weighted(temperature, interpolation_weights(times, end))
                 - weighted(temperature, interpolation_weights(times, start)))
-    advective = weighted(adv, linear_time_weights(times, start, end))
+    advective = integral(adv)
     parts = {"observed_change": observed, "advective": advective}
-    vertical = _vertical_term(ds, level_hpa)
+    vertical = _vertical_factors(ds, level_hpa)
     if vertical is not None:
-        parts["vertical"] = weighted(vertical, linear_time_weights(times, start, end))
+        parts["vertical"] = integral(*(interpolate_in_time(x, nodes) for x in vertical))
         parts["residual"] = observed - advective - parts["vertical"]
     else:
         parts["residual"] = observed - advective
@@ -85,14 +97,14 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     for name in out.data_vars:
         out[name].attrs = {"units": "K", "long_name": descriptions[name]}
     out.attrs = {"start": str(start)[:19], "end": str(end)[:19], "level_hPa": level_hpa,
-                 "wind": wind, "time_integration": "trapezoid over analysis times (exact for "
-                 "piecewise-linear time variation)",
+                 "wind": wind, "time_integration": TIME_INTEGRATION,
                  "source_files": ds.attrs.get("source_files", "")}
     return out
 
 
-def _vertical_term(ds, level_hpa: float):
-    """omega * S_p (K s-1) on the level, or None when the analysis has no omega."""
+def _vertical_factors(ds, level_hpa: float):
+    """(omega in Pa s-1, S_p in K Pa-1) on the level, whose product is the vertical term
+    (K s-1); None when the analysis has no omega."""
     if "omega" not in ds.data_vars or "level" not in ds.dims or ds.sizes["level"] < 2:
         return None
     import xarray as xr
@@ -106,9 +118,8 @@ def _vertical_term(ds, level_hpa: float):
         dask="parallelized", output_dtypes=[np.float64],
         dask_gufunc_kwargs={"allow_rechunk": True},  # dT/dp needs whole columns
     ).transpose(*ds["temperature"].dims)
-    term = select_level(xr.Dataset({"w": ds["omega"] * stability}), level_hpa)["w"]
-    term.attrs = {"units": "K s-1", "long_name": "omega times static stability"}
-    return term
+    level = select_level(xr.Dataset({"omega": ds["omega"], "stability": stability}), level_hpa)
+    return level["omega"], level["stability"]
 
 
 def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,

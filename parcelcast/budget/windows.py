@@ -1,10 +1,20 @@
 """Which analysis times a window uses, and with what weights.
 
 A window [start, end] rarely falls on analysis times.  These helpers check that the
-analyses cover it, keep only the analysis times it needs, and give the weights that turn
-values at analysis times into a value at one time (linear interpolation) or into a time
-integral (the trapezoid rule of the piecewise-linear interpolant).  Times are
-``datetime64``; weights are in seconds for integrals and dimensionless for interpolation.
+analyses cover it, keep only the analysis times it needs, interpolate fields linearly in
+time, and give the weights that turn values at analysis times into a value at one time or
+into a time integral.  Times are ``datetime64``; weights are in seconds for integrals and
+dimensionless for interpolation.
+
+Two integrals:
+
+* :func:`linear_time_weights`: the trapezoid rule, exact for a quantity that varies
+  linearly in time between analysis times (a station series, one analysed field).
+* :func:`simpson_nodes`: Simpson's rule on each piece of the window between analysis
+  times (both ends and the midpoint).  A product of two fields that each vary linearly in
+  time, such as the advection -V.grad T of linearly interpolated V and T, is quadratic in
+  time on each piece, so Simpson's rule integrates it exactly where the trapezoid rule of
+  the end values does not (it is off by h^3/12 times the second derivative per piece).
 """
 
 from __future__ import annotations
@@ -53,6 +63,52 @@ def interpolation_weights(times, when) -> np.ndarray:
     return weights
 
 
+def simpson_nodes(times, start, end) -> tuple[np.ndarray, np.ndarray]:
+    """Node times (datetime64[ns]) and weights (s) of Simpson's rule on each piece of [start, end].
+
+    The pieces are the window cut at the analysis ``times`` (ascending, covering the
+    window); each piece [a, b] has nodes a, (a + b)/2, b with weights (b - a)/6, 4(b - a)/6,
+    (b - a)/6, and a node shared by two pieces appears once with the sum of its weights.
+    Exact for any function that is quadratic in time on each piece.
+    """
+    t = np.asarray(times, dtype="datetime64[ns]")
+    a, b = np.datetime64(start, "ns"), np.datetime64(end, "ns")
+    cuts = np.unique(np.concatenate([[a], t[(t > a) & (t < b)], [b]]))
+    span = (cuts[1:] - cuts[:-1]) / np.timedelta64(1, "s")
+    middle = cuts[:-1] + (cuts[1:] - cuts[:-1]) // 2
+    nodes = np.concatenate([cuts, middle])
+    weights = np.concatenate([np.zeros(cuts.size), 4.0 * span / 6.0])
+    weights[:cuts.size - 1] += span / 6.0
+    weights[1:cuts.size] += span / 6.0
+    order = np.argsort(nodes, kind="stable")
+    return nodes[order], weights[order]
+
+
+def interpolate_in_time(da, when):
+    """``da`` interpolated linearly in time to the times ``when`` (its new ``time`` axis).
+
+    A time that is an analysis time takes that analysis as it is, so a NaN at the
+    neighbouring time does not spread; between two times a NaN at either gives NaN
+    (missing stays missing).  Attributes (units) are kept.
+    """
+    import xarray as xr
+
+    t = _seconds_from(da["time"].values, da["time"].values[0])
+    x = _seconds_from(when, da["time"].values[0])
+    lo = np.clip(np.searchsorted(t, x, side="right") - 1, 0, t.size - 1)
+    hi = np.minimum(lo + 1, t.size - 1)
+    gap = t[hi] - t[lo]
+    frac = np.where(gap > 0, (x - t[lo]) / np.where(gap > 0, gap, 1.0), 0.0)
+    hi = np.where(frac > 0, hi, lo)
+    alpha = xr.DataArray(frac, dims="time")
+    timed = [c for c in da.coords if "time" in da[c].dims]  # would repeat: dropped, time set below
+    below = da.isel(time=xr.DataArray(lo, dims="time")).drop_vars(timed)
+    above = da.isel(time=xr.DataArray(hi, dims="time")).drop_vars(timed)
+    out = (below * (1.0 - alpha) + above * alpha).assign_coords(time=np.asarray(when, "datetime64[ns]"))
+    out.attrs = dict(da.attrs)
+    return out
+
+
 def check_window(ds, start, end) -> None:
     """Refuse a window that is empty, reversed or not covered by the analysis times."""
     source = ds.attrs.get("source_files", "")
@@ -77,7 +133,7 @@ def bounding_times(ds, start, end):
 
 
 def weighted(da, weights):
-    """sum_i w_i da(t_i) over the times that count (a NaN outside the window does not
+    """sum_i w_i da(t_i) along ``time`` over the times that count (a NaN outside the window does not
     reach the result; a NaN inside it does: missing stays missing)."""
     import xarray as xr
 

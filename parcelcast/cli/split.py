@@ -95,7 +95,8 @@ def to_json(result: dict, args) -> dict:
         "consistency": jsonable(result["consistency"]),
         "advective_difference_K": json_number(result["advective_difference_K"], 4),
         "notes": [
-            "advective = time integral of -V.grad T (trapezoid over analysis times)",
+            "advective = time integral of -V.grad T of the fields interpolated linearly in time between "
+            "analyses (Simpson's rule on each piece between analysis times)",
             "vertical = time integral of omega * static stability"
             + ("" if euler["vertical_available"] else ": not available (no omega in the input)"),
             f"residual = observed - advective - vertical: {euler['residual_note']}",
