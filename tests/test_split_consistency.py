@@ -163,3 +163,17 @@ def test_era5_cli_says_it_in_json_and_text(capsys):
     assert "(diabatic)" not in text
     assert "NOT consistent" in text and "never forced together" in text
     assert "guidance is built on an inconsistent split" in text
+
+
+def test_a_trajectory_leaving_the_domain_leaves_the_verdict_open():
+    # the ramp's flow is ~15 m/s from the west: from 20 W a 24-h back trajectory leaves the
+    # grid (west edge 30 W, ~12 degrees of longitude a day at 50 N): the Lagrangian parts are
+    # missing (never filled), the consistency cannot be judged, and the warnings say why
+    out = trend_split(heated_unevenly(0.0, 3.0), 50.0, -20.0, 850.0, START, END, members=1)
+    lagr, con = out["lagrangian"], out["consistency"]
+    assert lagr["non_advective_K"] is None and lagr["advective_K"] is None
+    assert lagr["reached_start"] == 0
+    assert con["eulerian_minus_lagrangian_K"] is None and con["consistent"] is None
+    assert any("cannot be judged" in w for w in con["warnings"])
+    assert any("did not reach the window start" in w for w in con["warnings"])
+    assert np.isfinite(out["eulerian"]["residual_K"])  # the Eulerian view stands on its own

@@ -7,6 +7,7 @@ import numpy as np
 from parcelcast.budget.consistency import assess
 from parcelcast.budget.eulerian import eulerian_split
 from parcelcast.budget.lagrangian import lagrangian_split
+from parcelcast.budget.windows import bounding_times
 
 
 def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: str = "actual",
@@ -30,7 +31,5 @@ def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: 
 
 def _spacing_h(ds, start, end) -> float:
     """Largest gap (h) between the analysis times that bound the window."""
-    from parcelcast.budget.windows import bounding_times
-
     times = bounding_times(ds, start, end)["time"].values
     return float(np.max(np.diff(times)) / np.timedelta64(1, "h")) if times.size > 1 else 0.0
