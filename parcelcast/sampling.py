@@ -9,7 +9,6 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast.errors import SelectionError
-from parcelcast.grid.geometry import great_circle_km
 
 
 def value_at(da, lat: float, lon: float, grid=None):
@@ -36,6 +35,13 @@ def value_at(da, lat: float, lon: float, grid=None):
     out = (box * wlat * wlon).sum([ydim, xdim], skipna=False)
     out.attrs = dict(da.attrs)
     return out.assign_coords(lat=lat, lon=lon)
+
+
+def great_circle_km(lat1, lon1, lat2, lon2):
+    """Great-circle distance (km) on the sphere of radius EARTH_RADIUS (haversine)."""
+    from parcelcast.trajectories.sphere import great_circle_distance
+
+    return great_circle_distance(lat1, lon1, lat2, lon2) / 1000.0
 
 
 def area_mean(da, lat: float, lon: float, radius_km: float | None = None,

@@ -1,7 +1,8 @@
 """Distances on the sphere (the grid's geometry, shared by sampling and trajectories).
 
 Cell-area weights belong to each grid class (``area_weights`` in ``latlon.py`` and
-``projected.py``).
+``projected.py``).  ``parcelcast.trajectories.sphere`` re-exports
+:func:`great_circle_distance` so that older imports keep working.
 """
 
 from __future__ import annotations
@@ -25,7 +26,3 @@ def great_circle_distance(lat1, lon1, lat2, lon2, radius: float = EARTH_RADIUS) 
     h = np.sin((p2 - p1) / 2) ** 2 + np.cos(p1) * np.cos(p2) * np.sin(dl / 2) ** 2
     return 2.0 * radius * np.arcsin(np.sqrt(np.clip(h, 0.0, 1.0)))
 
-
-def great_circle_km(lat1, lon1, lat2, lon2, radius: float = EARTH_RADIUS):
-    """Great-circle distance (km) between points in degrees (haversine, see above)."""
-    return great_circle_distance(lat1, lon1, lat2, lon2, radius) / 1000.0

@@ -19,8 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from parcelcast.grid.geometry import great_circle_distance
-from parcelcast.trajectories.sphere import offset_point
+from parcelcast.trajectories.sphere import great_circle_distance, offset_point
 
 
 def cloud_offsets(n: int, radius_m: float, dp_pa: float):
