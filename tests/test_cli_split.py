@@ -60,6 +60,17 @@ def test_json_contract_without_omega(files, capsys):
     bound = eulerian_bound("2021-03-01T04:30", "2021-03-01T22:10", 3.0)
     assert abs(out["residual_K"] - expected) <= bound + ROUNDING
     assert abs(lg["non_advective_K"] - expected) <= bound + 0.01 + ROUNDING
+    # issue 13: the consistency object; uniform heating, so the two views agree
+    c = out["consistency"]
+    assert set(c) >= {"footing", "eulerian_minus_lagrangian_K", "ratio_to_observed_change",
+                      "consistent", "threshold_K", "warnings", "meaning"}
+    assert c["footing"] == lg["footing"] == "single analysis"
+    assert c["consistent"] is True and abs(c["eulerian_minus_lagrangian_K"]) <= 2 * bound + 0.01
+    assert c["eulerian_minus_lagrangian_K"] == pytest.approx(out["advective_K"] - lg["advective_K"],
+                                                             abs=ROUNDING)
+    assert any("no omega" in w for w in c["warnings"])
+    assert out["residual_holds"] == ("diabatic heating plus errors, plus the vertical-motion term "
+                                     "(not computed: no omega)")
 
 
 def test_json_with_omega_reports_a_number(files, capsys):

@@ -108,6 +108,9 @@ def to_json(result: dict, args) -> dict:
     for key in ("observed_change_members_K", "advective_members_K", "residual_members_K"):
         if key in euler:
             out[key] = [json_number(x, 4) for x in euler[key]]
+    for key in ("non_advective_members_K", "advective_members_K"):
+        if key in lagr:
+            out["lagrangian"][key] = [json_number(x, 4) for x in lagr[key]]
     if "station_gaps" in euler:
         out["station_gaps"] = euler["station_gaps"]
     if "area" in euler:
