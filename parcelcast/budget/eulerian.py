@@ -71,18 +71,15 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
         u, v = geostrophic_wind(select_level(ds[["geopotential"]], level_hpa))  # linear in z
     times = ds["time"].values
     nodes, node_weights = simpson_nodes(times, start, end)
-
-    def integral(*factors):
-        return weighted(factors[0] if len(factors) == 1 else factors[0] * factors[1], node_weights)
-
     adv = advection(*(interpolate_in_time(x, nodes) for x in (temperature, u, v)))
     observed = (weighted(temperature, interpolation_weights(times, end))
                 - weighted(temperature, interpolation_weights(times, start)))
-    advective = integral(adv)
+    advective = weighted(adv, node_weights)
     parts = {"observed_change": observed, "advective": advective}
     vertical = _vertical_factors(ds, level_hpa)
     if vertical is not None:
-        parts["vertical"] = integral(*(interpolate_in_time(x, nodes) for x in vertical))
+        omega, stability = (interpolate_in_time(x, nodes) for x in vertical)
+        parts["vertical"] = weighted(omega * stability, node_weights)
         parts["residual"] = observed - advective - parts["vertical"]
     else:
         parts["residual"] = observed - advective
