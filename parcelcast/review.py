@@ -21,7 +21,8 @@ A case file names the analyses, the station, the level and the window::
 
 :func:`build_review` computes the timeline of the split (observed change, advective,
 vertical and residual parts accumulated from the start to each analysis time), the
-split maps for the whole window, and back trajectories arriving at key times.
+split maps for the whole window, back trajectories arriving at key times, and the
+``consistency`` of the two views (:mod:`parcelcast.budget.consistency`).
 """
 
 from __future__ import annotations
