@@ -24,7 +24,8 @@ import numpy as np
 THRESHOLD_FLOOR_K = 1.0  #: K, project choice (see the module docstring)
 THRESHOLD_FRACTION = 0.25  #: of |observed change|, project choice
 THRESHOLD_RULE = "max(1 K, 25% of the size of the observed change), a project choice"
-#: analysis spacing above which the warnings say the flow between analyses is guessed (common practice)
+#: analysis spacing (h) above which a warning says the flow between analyses is interpolated over
+#: long gaps: a project choice (6-hourly is the usual cycle of operational analyses)
 COARSE_SPACING_H = 6.0
 
 MEANING = ("The Eulerian residual is the non-advective change at the station; the Lagrangian "
