@@ -1,8 +1,9 @@
 """``parcelcast profile``: indices, thermal-wind advection and guidance of one profile.
 
-Two forms::
+Three forms::
 
     parcelcast profile SOUNDING.csv [--lat LAT --lon LON --time ISO] [--json] [--plot OUT.png]
+    parcelcast profile TEMP.bufr (--station WMO_ID | --at LAT,LON | --list) [--json] [--plot OUT.png]
     parcelcast profile ANALYSIS... --at LAT,LON [--time ISO] [--var ROLE=NAME] [--json] [--plot OUT.png]
 """
 
@@ -16,9 +17,15 @@ from parcelcast.cli import _common
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("files", nargs="+", metavar="FILE",
                         help="a profile CSV file (header names quantity and unit, e.g. pressure_hPa, "
-                        "temperature_degC), or analysis files (NetCDF/GRIB) with --at")
+                        "temperature_degC), a BUFR file of radiosonde ascents (WMO TEMP), or analysis "
+                        "files (NetCDF/GRIB) with --at")
     parser.add_argument("--at", type=_common.lat_lon, metavar="LAT,LON",
-                        help="take the column of the analysis files at this point (degrees)")
+                        help="take the column of the analysis files at this point (degrees); with a "
+                        "BUFR file, the ascent nearest to it")
+    parser.add_argument("--station", metavar="WMO_ID",
+                        help="BUFR: the ascent of this station (5-digit index, block x 1000 + station)")
+    parser.add_argument("--list", action="store_true",
+                        help="BUFR: list the ascents (station, position, time, levels) and stop")
     parser.add_argument("--lat", type=float, help="latitude of a CSV profile (degrees north)")
     parser.add_argument("--lon", type=float, help="longitude of a CSV profile (degrees east)")
     parser.add_argument("--time", type=_common.utc_time, metavar="ISO",
@@ -33,17 +40,23 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--plot", metavar="PATH.png", help="draw a skew-T log-p diagram to this file")
 
 
-def build_report(profile, result, comparison=None) -> dict:
-    """The JSON document of the command (library values, renamed for people)."""
+def build_report(profile, result, comparison=None, selection=None) -> dict:
+    """The JSON document of the command (library values, renamed for people).
+
+    ``selection``: for a BUFR ascent, how it was chosen (station, distance from ``--at``).
+    """
     from parcelcast.cli import DISCLAIMER
 
-    doc = {
+    doc = {}
+    if selection is not None:
+        doc.update(selection)
+    doc.update({
         "source": profile.source,
         "latitude": profile.latitude,
         "longitude": profile.longitude,
         "time": _common.iso_utc(profile.time) if profile.time is not None else None,
         "levels": profile.nlev,
-    }
+    })
     doc.update(result)
     if comparison is not None:
         doc["gridded_layers"] = comparison
@@ -60,6 +73,8 @@ def _text(doc) -> str:
         return "--" if x is None else fmt.format(x)
 
     lines = [f"Profile: {doc['source']}" + (f"  valid {doc['time']}" if doc.get("time") else "")]
+    if doc.get("chosen_by"):
+        lines.append(f"  {doc['chosen_by']}")
     lines.append(f"  LCL {f(doc['lcl_hPa'])} hPa, {f(doc['lcl_temperature_K'], '{:.1f}')} K")
     for kind in ("surface", "mixed_layer", "most_unstable"):
         lines.append(f"  {kind:14s} CAPE {f(doc['cape_J_per_kg'][kind]):>6} J/kg  CIN "
@@ -87,17 +102,61 @@ def _text(doc) -> str:
     return "\n".join(lines)
 
 
+def _bufr_profile(args):
+    """(profile, selection dict) of the ascent chosen by --station or --at; None after --list."""
+    from parcelcast.io.bufr import ascent_profile, read_ascents, select_ascent
+
+    if len(args.files) != 1:
+        raise _common_error(f"give one BUFR file (got {', '.join(args.files)})")
+    ascents = read_ascents(args.files[0])
+    if args.list:
+        rows = [a.summary() for a in ascents]
+        if args.json:
+            _common.print_json(_common.jsonable({"source": args.files[0], "ascents": rows}))
+        else:
+            print(f"{len(rows)} ascent(s) in {args.files[0]}:")
+            for r in rows:
+                print(f"  {r['station'] or '-----'}  {r['lat']:8.3f} {r['lon']:9.3f}  "
+                      f"{_common.iso_utc(r['time'])}  {r['levels']:4d} levels, top {r['top_hPa']:g} hPa")
+        return None
+    ascent, km = select_ascent(ascents, args.station, args.at)
+    selection = {"station": ascent.station, "time": ascent.time, "lat": ascent.latitude,
+                 "lon": ascent.longitude}
+    if km is not None:
+        selection["distance_km"] = km
+        selection["chosen_by"] = (f"nearest ascent to {args.at[0]:g},{args.at[1]:g}: station "
+                                  f"{ascent.station} at {ascent.latitude:g},{ascent.longitude:g}, {km:.0f} km away")
+    return ascent_profile(ascent), selection
+
+
+def _common_error(message):
+    from parcelcast.errors import ParcelcastError
+
+    return ParcelcastError(message)
+
+
 def run(args) -> int:
     from pathlib import Path
 
-    from parcelcast.errors import ParcelcastError
+    from parcelcast.io.bufr import is_bufr
     from parcelcast.profiles import analyse, column_from_analysis, gridded_layer_advection, read_profile_csv
 
     comparison = None
-    if args.at is None:
+    selection = None
+    bufr = len(args.files) == 1 and is_bufr(args.files[0])
+    if (args.station or args.list) and not bufr:
+        raise _common_error("--station and --list need one BUFR file of radiosonde ascents "
+                            f"(got {', '.join(args.files)})")
+    if bufr:
+        chosen = _bufr_profile(args)
+        if chosen is None:
+            return 0
+        profile, selection = chosen
+        result = analyse(profile, advective_change=args.advected_change)
+    elif args.at is None:
         if len(args.files) != 1 or Path(args.files[0]).suffix.lower() not in (".csv", ".txt"):
-            raise ParcelcastError(
-                "give one profile CSV file, or analysis files with --at LAT,LON "
+            raise _common_error(
+                "give one profile CSV file, one BUFR file, or analysis files with --at LAT,LON "
                 f"(got {', '.join(args.files)})")
         profile = read_profile_csv(args.files[0], args.lat, args.lon, args.time)
         result = analyse(profile, advective_change=args.advected_change)
@@ -111,7 +170,7 @@ def run(args) -> int:
         if {"temperature", "u", "v"} <= set(ds.data_vars):
             comparison = gridded_layer_advection(
                 ds, lat, lon, [(x["bottom_hPa"], x["top_hPa"]) for x in result["layers"]], args.time)
-    doc = build_report(profile, result, comparison)
+    doc = build_report(profile, result, comparison, selection)
     if args.plot:
         from parcelcast.render.skewt import save_profile_diagram
 

@@ -8,7 +8,11 @@ command line writes as JSON and the diagram draws from.  Definitions:
 * Showalter index = T500 - T_parcel(500), parcel lifted from 850 hPa (Showalter 1953).
 * Lifted index = T500 - T_parcel(500) of the mixed-layer parcel (lowest 100 hPa;
   Galway 1956 used a mean of the lowest layer), temperatures not virtual.
-* Precipitable water = (1/g) integral q dp over levels with humidity (mm = kg m-2).
+* Precipitable water = (1/g) integral q dp over levels with humidity (mm = kg m-2), up to
+  the profile's ``moisture_top_pressure`` when set (radiosonde ascents: 300 hPa, common
+  practice); ``precipitable_water_layer_hPa`` says which layer it covers and
+  ``humidity_layer_hPa`` the layer with humidity (above it, air counts as dry for
+  CAPE/CIN and the other humidity-dependent values).
 * Freezing (0 degC), -10 degC and wet-bulb-zero levels: the highest crossing in the
   column (above it the column stays colder), height above mean sea level; NaN if the
   whole column is colder; ground-level height if only the ground is warmer.
@@ -61,18 +65,31 @@ def crossing_height(height, values, threshold):
     return float(z[k] + (z[k + 1] - z[k]) * f[k] / (f[k] - f[k + 1]))
 
 
-def precipitable_water(pressure, dewpoint):
+def precipitable_water(pressure, dewpoint, top_pressure=None):
     """Precipitable water (mm) = integral of specific humidity dp / (g rho_w), trapezoid.
 
-    Levels without humidity are left out (the integral stops where humidity stops).
+    Levels without humidity are left out (the integral stops where humidity stops), and
+    so are levels above ``top_pressure`` (Pa) when given.
     """
+    return _precipitable_water(pressure, dewpoint, top_pressure)[0]
+
+
+def _precipitable_water(pressure, dewpoint, top_pressure=None):
+    """Precipitable water (mm) and the (bottom, top) pressures (Pa) of the levels it used."""
     p = np.asarray(pressure, dtype=np.float64)
     q = specific_humidity_from_dewpoint(dewpoint, p)
     ok = np.isfinite(q)
+    if top_pressure is not None:
+        ok &= p >= top_pressure
     pk, qk = p[ok], q[ok]
     if pk.size < 2:
-        return np.nan
-    return float(np.sum(0.5 * (qk[:-1] + qk[1:]) * (pk[:-1] - pk[1:])) / G0 / RHO_WATER * 1000.0)
+        return np.nan, (np.nan, np.nan)
+    pw = float(np.sum(0.5 * (qk[:-1] + qk[1:]) * (pk[:-1] - pk[1:])) / G0 / RHO_WATER * 1000.0)
+    return pw, (float(pk.max()), float(pk.min()))
+
+
+def _layer_hPa(bottom, top):
+    return {"bottom": bottom / 100.0, "top": top / 100.0}
 
 
 def inversions(pressure, height, temperature, min_strength=0.0):
@@ -97,6 +114,21 @@ def inversions(pressure, height, temperature, min_strength=0.0):
         else:
             k += 1
     return out
+
+
+def _lift_on_temperature_levels(p, t, td):
+    """Parcels lifted through the levels that have a temperature (observed ascents carry
+    wind-only levels); per-level arrays are put back on all levels, NaN on the others."""
+    has_t = np.isfinite(t)
+    parcels = lift_parcels(p[has_t], t[has_t], td[has_t], PARCELS)
+    if has_t.all():
+        return parcels
+    for r in parcels.values():
+        for name in ("parcel_temperature", "buoyancy"):
+            full = np.full(p.shape, np.nan)
+            full[has_t] = getattr(r, name)
+            setattr(r, name, full)
+    return parcels
 
 
 def _lapse(z_bot, z_top, t_bot, t_top):
@@ -126,7 +158,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     """
     p, z, t, td = profile.pressure, profile.height, profile.temperature, profile.dewpoint
     res = {}
-    parcels = lift_parcels(p, t, td, PARCELS)
+    parcels = _lift_on_temperature_levels(p, t, td)
     per = lambda attr, scale=1.0: {k: float(getattr(r, attr)) * scale for k, r in parcels.items()}  # noqa: E731
     res["cape_J_per_kg"] = per("cape")
     res["cin_J_per_kg"] = per("cin")
@@ -154,7 +186,11 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
         res["showalter_index_K"] = t500 - tp500
     else:
         res["showalter_index_K"] = np.nan
-    res["precipitable_water_mm"] = precipitable_water(p, td)
+    pw, (pw_bottom, pw_top) = _precipitable_water(p, td, profile.moisture_top_pressure)
+    res["precipitable_water_mm"] = pw
+    res["precipitable_water_layer_hPa"] = _layer_hPa(pw_bottom, pw_top)
+    wet = np.isfinite(td) & np.isfinite(t)
+    res["humidity_layer_hPa"] = _layer_hPa(float(p[wet].max()), float(p[wet].min()))
     res["freezing_level_m"] = crossing_height(z, t, T_ZERO_C)
     res["minus10_level_m"] = crossing_height(z, t, T_ZERO_C - 10.0)
     tw = wet_bulb_temperature(t, td, p)
@@ -177,7 +213,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
         res["mixed_layer_depth_m"] = float(zk - z[0])
     else:
         res["mixed_layer_depth_m"] = np.nan
-    res["top_temperature_guidance"] = top_temperature_guidance(p, t, mixing_top_pressure, advective_change)
+    res["top_temperature_guidance"] = top_temperature_guidance(p[ok], t[ok], mixing_top_pressure, advective_change)
     res["layers"] = thermal_wind_advection(p, profile.u, profile.v, profile.latitude)
     res["_parcels"] = parcels  # arrays for the diagram; dropped from JSON
     return res

@@ -48,6 +48,9 @@ class Profile:
     source : where the column came from (file, or analysis and point).
     rows : (nlev,) the row number in the source (1-based line of a CSV file), for messages.
     notes : things the user should know (missing humidity aloft, superadiabatic layers...).
+    station : WMO station index of an observed ascent, or None.
+    moisture_top_pressure : Pa; moisture integrals (precipitable water) stop here, or None
+        for the whole column (radiosonde ascents: 300 hPa, common practice).
     """
 
     pressure: np.ndarray
@@ -62,6 +65,8 @@ class Profile:
     source: str = ""
     rows: np.ndarray | None = None
     notes: list[str] = field(default_factory=list)
+    station: str | None = None
+    moisture_top_pressure: float | None = None
 
     @property
     def nlev(self) -> int:
