@@ -33,6 +33,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         "default the latest; or of a CSV profile that does not state one")
     parser.add_argument("--var", action="append", type=_common.variable_override, default=[],
                         metavar="ROLE=NAME", help="name the analysis variable for a role; repeatable")
+    parser.add_argument("--humidity-over", choices=("water", "ice", "mixed"),
+                        help="analyses: how their relative humidity is defined (default: from the GRIB "
+                        "originating centre, e.g. NCEP or ECMWF mixed phase; over water when unknown)")
     parser.add_argument("--advected-change", type=float, default=0.0, metavar="K",
                         help="temperature change (K) expected from advection by the afternoon, "
                         "added to the top-temperature guidance")
@@ -58,6 +61,8 @@ def build_report(profile, result, comparison=None, selection=None) -> dict:
         "levels": profile.nlev,
     })
     doc.update(result)
+    if profile.humidity_rule is not None:
+        doc["humidity_rule"] = profile.humidity_rule
     if comparison is not None:
         doc["gridded_layers"] = comparison
     doc["thermal_wind_assumptions"] = (
@@ -165,7 +170,7 @@ def run(args) -> int:
 
         lat, lon = args.at
         ds = open_analysis(args.files, dict(args.var))
-        profile = column_from_analysis(ds, lat, lon, args.time)
+        profile = column_from_analysis(ds, lat, lon, args.time, args.humidity_over)
         result = analyse(profile, advective_change=args.advected_change)
         if {"temperature", "u", "v"} <= set(ds.data_vars):
             comparison = gridded_layer_advection(

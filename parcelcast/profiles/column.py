@@ -17,7 +17,9 @@ from parcelcast.constants import SECONDS_PER_HOUR
 
 from parcelcast.errors import VariableNotFoundError
 from parcelcast.profiles.profile import Profile, fill_heights, validate
-from parcelcast.thermo import dewpoint_from_relative_humidity, dewpoint_from_specific_humidity
+from parcelcast.io.grib_centre import originating_centre
+from parcelcast.thermo import dewpoint_from_specific_humidity, dewpoint_from_vapour_pressure
+from parcelcast.thermo.model_humidity import rule_for, vapour_pressure_from_model_rh
 from parcelcast.thermo.constants import G0
 
 __all__ = ["column_from_analysis", "gridded_layer_advection"]
@@ -34,7 +36,7 @@ def _select(ds, time):
     return ds, notes
 
 
-def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Profile:
+def column_from_analysis(ds, latitude: float, longitude: float, time=None, humidity_over=None) -> Profile:
     """Column of a canonical analysis at (latitude, longitude) and valid ``time``.
 
     Parameters
@@ -48,6 +50,10 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Pr
         Degrees north / east.
     time : numpy.datetime64, optional
         Valid time (UTC); default the latest analysis time.
+    humidity_over : {"water", "ice", "mixed"}, optional
+        How the analysis relative humidity is defined; default: from the GRIB originating
+        centre (:func:`parcelcast.thermo.model_humidity.rule_for`).  The profile's
+        ``humidity_rule`` says which rule was used and why.
 
     Returns
     -------
@@ -75,11 +81,15 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Pr
     z = col("geopotential")
     z = z / G0 if z is not None else np.full(p.shape, np.nan)
     rh, q = col("relative_humidity"), col("specific_humidity")
+    rule_used = None
     if rh is not None:
+        rule, reason = rule_for(originating_centre(ds), humidity_over)
+        rule_used = {"rule": rule.name, "meaning": rule.describe(), "chosen": reason}
         with np.errstate(divide="ignore", invalid="ignore"):
-            td = dewpoint_from_relative_humidity(t, np.clip(rh, 0.0, 1.0))
-        td = np.minimum(td, t)
-        notes.append("dew point from the analysis relative humidity (WMO-No. 8 Magnus formula)")
+            e = vapour_pressure_from_model_rh(t, np.clip(rh, 0.0, 1.0), rule)
+            td = np.minimum(dewpoint_from_vapour_pressure(e), t)
+        notes.append(f"dew point (over water) from the analysis relative humidity, read as "
+                     f"{rule.describe()}: {reason}")
     elif q is not None:
         td = np.minimum(dewpoint_from_specific_humidity(q, p), t)
     else:
@@ -111,7 +121,8 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None) -> Pr
                      "(levels below a high station's ground may be extrapolated values)")
     prof = Profile(pressure=p, height=z, temperature=t, dewpoint=td, u=u, v=v, latitude=float(latitude),
                    longitude=float(longitude), time=when,
-                   source=f"{src} at {latitude:g},{longitude:g}", rows=None, notes=notes)
+                   source=f"{src} at {latitude:g},{longitude:g}", rows=None, notes=notes,
+                   humidity_rule=rule_used)
     return validate(prof)
 
 

@@ -51,6 +51,8 @@ class Profile:
     station : WMO station index of an observed ascent, or None.
     moisture_top_pressure : Pa; moisture integrals (precipitable water) stop here, or None
         for the whole column (radiosonde ascents: 300 hPa, common practice).
+    humidity_rule : for a column from an analysis's relative humidity, the rule it was read
+        with (``{"rule", "meaning", "chosen"}``, :mod:`parcelcast.thermo.model_humidity`).
     """
 
     pressure: np.ndarray
@@ -67,6 +69,7 @@ class Profile:
     notes: list[str] = field(default_factory=list)
     station: str | None = None
     moisture_top_pressure: float | None = None
+    humidity_rule: dict | None = None
 
     @property
     def nlev(self) -> int:
