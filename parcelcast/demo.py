@@ -3,11 +3,16 @@
 Everything here is made up for the demonstration (no real place or event).
 The atmosphere is analytic and its budget is known exactly:
 
-* a temperature pattern ``P(lon - Omega_c t, lat, p)`` (meridional gradient plus a
-  wave) drifts east at angular speed ``Omega_c``;
+* a temperature pattern ``P = T0(p) + A(p) G(lon - Omega_c t, lat)`` (one horizontal
+  shape G, a meridional gradient plus a wave, scaled by A(p) at every level) drifts east
+  at angular speed ``Omega_c``;
 * the wind is the pattern's drift plus a flow *along* its isotherms,
-  ``u = Omega_c a cos(lat) - k(p) dP/(a dlat)``, ``v = k(p) dP/(a cos(lat) dlon)``,
+  ``u = Omega_c a cos(lat) - k dG/(a dlat)``, ``v = k dG/(a cos(lat) dlon)``,
   so that -V.grad P equals the local change of P exactly;
+* the along-isotherm factor ``k(p, lat) = k0 + (R_d / f) integral_p^1000hPa A dln p``
+  puts the wind in thermal-wind balance with the temperature: the shear between two
+  levels is ``(R_d / f) k x grad(integral of T dln p)`` (Holton and Hakim 2013, sec. 3.4),
+  so the thermal-wind advection of a profile agrees with the gridded advection;
 * a spatially uniform diurnal heating ``H(t, p)`` is added near the ground and does
   not change the gradients.  Hence, exactly, dT/dt = -V.grad T + dH/dt: the
   advective part is -V.grad T and the non-advective (diabatic) part is dH/dt.
@@ -47,23 +52,51 @@ def _base_temperature(p_hpa):
     return 282.0 * (p_hpa / 1000.0) ** 0.19
 
 
-def _along_isotherm_factor(p_hpa):
-    """k(p) in m2 s-1 K-1: flow along isotherms, stronger aloft (thermal-wind-like)."""
-    return 2.2e6 * (1.0 + (1000.0 - p_hpa) / 400.0)
+#: along-isotherm factor at 1000 hPa (m2 s-1 K-1).
+ALONG_ISOTHERM_1000HPA = 2.2e6
+
+
+def _vertical_factor(p_hpa):
+    """A(p): the pattern's horizontal contrasts, 1 at 1000 hPa, weaker aloft (0.72 at 300 hPa)."""
+    return 0.6 + 0.4 * p_hpa / 1000.0
+
+
+def _along_isotherm_factor(p_hpa, lat_deg):
+    """k(p, lat) in m2 s-1 K-1: k0 + (R_d/f) * integral of A(p') dln p' from p to 1000 hPa.
+
+    The integral of 0.6 + 0.4 p'/1000 over dln p' is 0.6 ln(1000/p) + 0.4 (1000 - p)/1000.
+    """
+    from parcelcast.grid.latlon import coriolis_parameter
+
+    integral = 0.6 * np.log(1000.0 / p_hpa) + 0.4 * (1000.0 - p_hpa) / 1000.0
+    return ALONG_ISOTHERM_1000HPA + DRY_AIR_GAS_CONSTANT / coriolis_parameter(lat_deg) * integral
+
+
+def _shape(lon_deg, lat_deg, seconds):
+    """G (K) and dG/dlon, dG/dlat (K per radian): meridional gradient plus the drifting wave."""
+    lam = np.deg2rad(lon_deg) - DRIFT_RAD_PER_S * seconds
+    envelope = np.exp(-(((lat_deg - WAVE_CENTRE_LAT) / WAVE_HALF_WIDTH_DEG) ** 2))
+    wave = WAVE_AMPLITUDE_K * np.sin(WAVE_NUMBER * lam) * envelope
+    value = MERIDIONAL_GRADIENT_K_PER_DEG * (lat_deg - WAVE_CENTRE_LAT) + wave
+    d_lon = WAVE_AMPLITUDE_K * WAVE_NUMBER * np.cos(WAVE_NUMBER * lam) * envelope
+    d_lat_deg = MERIDIONAL_GRADIENT_K_PER_DEG - 2.0 * (lat_deg - WAVE_CENTRE_LAT) / WAVE_HALF_WIDTH_DEG ** 2 * wave
+    return value, d_lon, np.rad2deg(d_lat_deg)
 
 
 def pattern(lon_deg, lat_deg, p_hpa, seconds):
     """P (K) and its derivatives dP/dlon, dP/dlat (K per radian) at given times."""
-    lam = np.deg2rad(lon_deg) - DRIFT_RAD_PER_S * seconds
-    envelope = np.exp(-(((lat_deg - WAVE_CENTRE_LAT) / WAVE_HALF_WIDTH_DEG) ** 2))
-    amp = WAVE_AMPLITUDE_K * (0.6 + 0.4 * p_hpa / 1000.0)
-    wave = amp * np.sin(WAVE_NUMBER * lam) * envelope
-    value = (_base_temperature(p_hpa) + MERIDIONAL_GRADIENT_K_PER_DEG * (lat_deg - WAVE_CENTRE_LAT)
-             + wave)
-    d_lon = amp * WAVE_NUMBER * np.cos(WAVE_NUMBER * lam) * envelope
-    d_lat_deg = (MERIDIONAL_GRADIENT_K_PER_DEG
-                 - 2.0 * (lat_deg - WAVE_CENTRE_LAT) / WAVE_HALF_WIDTH_DEG ** 2 * wave)
-    return value, d_lon, np.rad2deg(d_lat_deg)
+    g, g_lon, g_lat = _shape(lon_deg, lat_deg, seconds)
+    a = _vertical_factor(p_hpa)
+    return _base_temperature(p_hpa) + a * g, a * g_lon, a * g_lat
+
+
+def wind(lon_deg, lat_deg, p_hpa, seconds):
+    """(u, v) in m/s: the pattern's eastward drift plus the balanced flow along its isotherms."""
+    _, g_lon, g_lat = _shape(lon_deg, lat_deg, seconds)
+    k = _along_isotherm_factor(p_hpa, lat_deg)
+    coslat = np.cos(np.deg2rad(lat_deg))
+    return (DRIFT_RAD_PER_S * EARTH_RADIUS * coslat - k * g_lat / EARTH_RADIUS,
+            k * g_lon / (EARTH_RADIUS * coslat))
 
 
 def diurnal_heating(seconds, p_hpa, lon_deg=STATION_LON):
@@ -89,15 +122,11 @@ def build_scenario(resolution_deg: float = 1.0):
     u = np.empty(shape)
     v = np.empty(shape)
     lon2, lat2 = np.meshgrid(lon, lat)
-    coslat = np.cos(np.deg2rad(lat2))
     for it, sec in enumerate(seconds):
         for ip, p in enumerate(LEVELS_HPA):
-            value, d_lon, d_lat = pattern(lon2, lat2, p, sec)
             heat, _ = diurnal_heating(sec, p)
-            k = _along_isotherm_factor(p)
-            t[it, ip] = value + heat
-            u[it, ip] = DRIFT_RAD_PER_S * EARTH_RADIUS * coslat - k * d_lat / EARTH_RADIUS
-            v[it, ip] = k * d_lon / (EARTH_RADIUS * coslat)
+            t[it, ip] = pattern(lon2, lat2, p, sec)[0] + heat
+            u[it, ip], v[it, ip] = wind(lon2, lat2, p, sec)
     # hydrostatic geopotential height, 1000 hPa surface at 110 m
     phi = np.empty(shape)
     phi[:, 0] = 110.0 * STANDARD_GRAVITY
