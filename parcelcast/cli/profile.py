@@ -73,26 +73,49 @@ def build_report(profile, result, comparison=None, selection=None) -> dict:
     return _common.jsonable(doc)
 
 
-def _text(doc) -> str:
-    def f(x, fmt="{:.0f}"):
-        return "--" if x is None else fmt.format(x)
+def _number(x, fmt="{:.0f}") -> str:
+    """A value for the text output: "--" when missing, never "-0"."""
+    if x is None:
+        return "--"
+    text = fmt.format(x)
+    return text[1:] if text.startswith("-") and not text.strip("-0.") else text
 
+
+def _height_text(doc, key, name) -> str:
+    if doc[f"{key}_m"] is None:
+        return f"{name} -- ({doc.get(f'{key}_missing_because', 'not found')})"
+    return (f"{name} {_number(doc[f'{key}_m'])} m above sea level, "
+            f"{_number(doc[f'{key}_above_ground_m'])} m above ground")
+
+
+def _text(doc) -> str:
+    f = _number
+    parcels = doc["index_parcels"]
     lines = [f"Profile: {doc['source']}" + (f"  valid {doc['time']}" if doc.get("time") else "")]
     if doc.get("chosen_by"):
         lines.append(f"  {doc['chosen_by']}")
-    lines.append(f"  LCL {f(doc['lcl_hPa'])} hPa, {f(doc['lcl_temperature_K'], '{:.1f}')} K")
+    lines.append(f"  LCL ({parcels['lcl_hPa'].replace('_', '-')} parcel) {f(doc['lcl_hPa'])} hPa, "
+                 f"{f(doc['lcl_temperature_K'], '{:.1f}')} K")
     for kind in ("surface", "mixed_layer", "most_unstable"):
         lines.append(f"  {kind:14s} CAPE {f(doc['cape_J_per_kg'][kind]):>6} J/kg  CIN "
                      f"{f(doc['cin_J_per_kg'][kind]):>6} J/kg  LFC {f(doc['lfc_hPa'][kind]):>5} hPa  "
-                     f"EL {f(doc['el_hPa'][kind]):>5} hPa")
-    lines.append(f"  lifted index {f(doc['lifted_index_K'], '{:.1f}')} K, Showalter "
+                     f"EL {f(doc['el_hPa'][kind]):>5} hPa  lifted index "
+                     f"{f(doc['lifted_index_by_parcel_K'][kind], '{:.1f}'):>5} K")
+    lines.append(f"  lifted index ({parcels['lifted_index_K'].replace('_', '-')} parcel) "
+                 f"{f(doc['lifted_index_K'], '{:.1f}')} K, Showalter ({parcels['showalter_index_K']} parcel) "
                  f"{f(doc['showalter_index_K'], '{:.1f}')} K, K index {f(doc['k_index_K'], '{:.0f}')}, "
                  f"Total Totals {f(doc['total_totals_K'], '{:.0f}')}")
-    lines.append(f"  precipitable water {f(doc['precipitable_water_mm'], '{:.1f}')} mm, freezing level "
-                 f"{f(doc['freezing_level_m'])} m, wet-bulb zero {f(doc['wet_bulb_zero_m'])} m")
+    pw_layer = doc["precipitable_water_layer_hPa"]
+    lines.append(f"  precipitable water {f(doc['precipitable_water_mm'], '{:.1f}')} mm "
+                 f"({f(pw_layer['bottom'])}-{f(pw_layer['top'])} hPa; humidity reported "
+                 f"{f(doc['humidity_layer_hPa']['bottom'])}-{f(doc['humidity_layer_hPa']['top'])} hPa)")
+    lines.append("  " + _height_text(doc, "freezing_level", "freezing level"))
+    lines.append("  " + _height_text(doc, "wet_bulb_zero", "wet-bulb zero"))
     g = doc["top_temperature_guidance"]
     lines.append(f"  top-temperature guidance {f(g['temperature_K'] and g['temperature_K'] - 273.15, '{:.1f}')} "
                  f"degC (mixing from {f(g['mixing_top_hPa'])} hPa)")
+    if doc.get("humidity_rule"):
+        lines.append(f"  humidity: {doc['humidity_rule']['meaning']} ({doc['humidity_rule']['chosen']})")
     if doc["layers"]:
         gridded = doc.get("gridded_layers")
         lines.append("  thermal-wind advection by layer (K/h, + warm)"

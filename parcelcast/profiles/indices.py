@@ -14,8 +14,12 @@ command line writes as JSON and the diagram draws from.  Definitions:
   ``humidity_layer_hPa`` the layer with humidity (above it, air counts as dry for
   CAPE/CIN and the other humidity-dependent values).
 * Freezing (0 degC), -10 degC and wet-bulb-zero levels: the highest crossing in the
-  column (above it the column stays colder), height above mean sea level; NaN if the
-  whole column is colder; ground-level height if only the ground is warmer.
+  column (above it the column stays colder), height above mean sea level (``*_m``) and
+  above the ground (``*_above_ground_m``); NaN if the whole column is colder, with the
+  reason in ``*_missing_because``; ground-level height if only the ground is warmer.
+* ``index_parcels`` names the parcel behind each single-parcel index (LCL: surface,
+  lifted index: mixed layer, Showalter: 850 hPa); CAPE, CIN, LFC, EL and
+  ``lifted_index_by_parcel_K`` are given for every parcel.
 * Lapse rates 850-500 hPa, 700-500 hPa and 0-3 km above ground, K/km (positive when
   temperature falls with height).
 * Inversions: layers where temperature rises with height (base, top, strength).
@@ -43,7 +47,14 @@ from parcelcast.thermo import (
 )
 from parcelcast.thermo.constants import G0, KAPPA, RHO_WATER, T_ZERO_C
 
-__all__ = ["analyse", "crossing_height", "inversions", "precipitable_water"]
+__all__ = ["analyse", "crossing_height", "inversions", "precipitable_water", "INDEX_PARCELS"]
+
+#: which parcel each single-parcel index lifts (CAPE, CIN, LFC, EL are given for every parcel).
+INDEX_PARCELS = {
+    "lcl_hPa": "surface",
+    "lifted_index_K": "mixed_layer",
+    "showalter_index_K": "850 hPa",
+}
 
 
 def crossing_height(height, values, threshold):
@@ -116,6 +127,19 @@ def inversions(pressure, height, temperature, min_strength=0.0):
     return out
 
 
+def _level(key, z, values, threshold) -> dict:
+    """A crossing level above sea level and above the ground, and why it is missing."""
+    amsl = crossing_height(z, values, threshold)
+    out = {f"{key}_m": amsl, f"{key}_above_ground_m": amsl - z[0]}
+    if np.isnan(amsl):
+        ok = np.isfinite(values)
+        colder = not (values[ok] > threshold).any()
+        out[f"{key}_missing_because"] = (
+            f"the whole column is at or below {threshold - T_ZERO_C:g} degC: the level is below the ground"
+            if colder else f"the column is above {threshold - T_ZERO_C:g} degC up to the top of the data")
+    return out
+
+
 def _lift_on_temperature_levels(p, t, td):
     """Parcels lifted through the levels that have a temperature (observed ascents carry
     wind-only levels); per-level arrays are put back on all levels, NaN on the others."""
@@ -161,7 +185,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     parcels = _lift_on_temperature_levels(p, t, td)
     per = lambda attr, scale=1.0: {k: float(getattr(r, attr)) * scale for k, r in parcels.items()}  # noqa: E731
     res["cape_J_per_kg"] = per("cape")
-    res["cin_J_per_kg"] = per("cin")
+    res["cin_J_per_kg"] = {k: v + 0.0 for k, v in per("cin").items()}  # + 0.0: no "-0" when there is none
     res["lcl_pressure_hPa"] = per("lcl_pressure", 0.01)
     res["lfc_hPa"] = per("lfc_pressure", 0.01)
     res["el_hPa"] = per("el_pressure", 0.01)
@@ -172,6 +196,7 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     res["lcl_temperature_K"] = float(sfc.lcl_temperature)
     res["lcl_height_m"] = value_at_pressure(p, z, float(sfc.lcl_pressure))
     res["lifted_index_K"] = float(parcels["mixed_layer"].lifted_index)
+    res["index_parcels"] = dict(INDEX_PARCELS)
 
     t850, t700, t500 = (value_at_pressure(p, t, x) for x in (85000.0, 70000.0, 50000.0))
     td850, td700 = value_at_pressure(p, td, 85000.0), value_at_pressure(p, td, 70000.0)
@@ -191,10 +216,10 @@ def analyse(profile: Profile, advective_change=0.0, mixing_top_pressure=None) ->
     res["precipitable_water_layer_hPa"] = _layer_hPa(pw_bottom, pw_top)
     wet = np.isfinite(td) & np.isfinite(t)
     res["humidity_layer_hPa"] = _layer_hPa(float(p[wet].max()), float(p[wet].min()))
-    res["freezing_level_m"] = crossing_height(z, t, T_ZERO_C)
-    res["minus10_level_m"] = crossing_height(z, t, T_ZERO_C - 10.0)
     tw = wet_bulb_temperature(t, td, p)
-    res["wet_bulb_zero_m"] = crossing_height(z, tw, T_ZERO_C)
+    for key, values, threshold in (("freezing_level", t, T_ZERO_C), ("minus10_level", t, T_ZERO_C - 10.0),
+                                   ("wet_bulb_zero", tw, T_ZERO_C)):
+        res.update(_level(key, z, values, threshold))
     z850, z700, z500 = (value_at_pressure(p, z, x) for x in (85000.0, 70000.0, 50000.0))
     res["lapse_rate_850_500_K_per_km"] = _lapse(z850, z500, t850, t500)
     res["lapse_rate_700_500_K_per_km"] = _lapse(z700, z500, t700, t500)
