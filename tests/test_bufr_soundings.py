@@ -337,3 +337,59 @@ def test_precipitable_water_by_direct_trapezoid(target):
     pw = np.sum(0.5 * (q[1:] + q[:-1]) * -np.diff(pp)) / 9.80665  # kg m-2 = mm
     res = analyse(ascent_profile(read_ascents(path)[i]))
     assert res["precipitable_water_mm"] == pytest.approx(pw, rel=2e-3)
+
+
+# ------------------------------------------------------------------- several ascents, bad files
+def _two_subset_message(path):
+    """Encode one uncompressed BUFR message holding two ascents (two subsets with 3 and 4
+    levels) with eccodes' encoder, descriptors from WMO BUFR Table B/D."""
+    ec = _eccodes()
+    h = ec.codes_bufr_new_from_samples("BUFR4")
+    for key, value in (("masterTablesVersionNumber", 28), ("localTablesVersionNumber", 0), ("dataCategory", 2),
+                       ("numberOfSubsets", 2), ("observedData", 1), ("compressedData", 0)):
+        ec.codes_set(h, key, value)
+    ec.codes_set_array(h, "inputDelayedDescriptorReplicationFactor", [3, 4])
+    ec.codes_set_array(h, "unexpandedDescriptors", [1001, 1002, 4001, 4002, 4003, 4004, 4005, 5001, 6001, 7030,
+                                                    107000, 31001, 7004, 8042, 10009, 12101, 12103, 11001, 11002])
+    per_subset = {"blockNumber": [10, 11], "stationNumber": [954, 35], "year": [2025] * 2, "month": [2] * 2,
+                  "day": [23] * 2, "hour": [12] * 2, "minute": [0] * 2, "latitude": [47.83, 48.25],
+                  "longitude": [10.87, 16.36], "heightOfStationGroundAboveMeanSeaLevel": [760.0, 200.0]}
+    levels = {"pressure": [94000.0, 85000.0, 70000.0, 99000.0, 92500.0, 85000.0, 70000.0],
+              "extendedVerticalSoundingSignificance": [131072, 65536, 65536, 131072, 65536, 65536, 65536],
+              "nonCoordinateGeopotentialHeight": [760.0, 1500.0, 3050.0, 200.0, 800.0, 1520.0, 3070.0],
+              "airTemperature": [275.0, 270.0, 260.0, 280.0, 276.0, 271.0, 261.0],
+              "dewpointTemperature": [270.0, 262.0, 250.0, 276.0, 272.0, 265.0, 250.0],
+              "windDirection": [270, 280, 290, 200, 210, 220, 230],
+              "windSpeed": [5.0, 10.0, 15.0, 4.0, 8.0, 12.0, 16.0]}
+    for key, values in {**per_subset, **levels}.items():
+        ec.codes_set_array(h, key, values)
+    ec.codes_set(h, "pack", 1)
+    with open(path, "wb") as fh:
+        ec.codes_write(h, fh)
+    ec.codes_release(h)
+    return levels
+
+
+def test_several_ascents_in_one_message(tmp_path, capsys):
+    from parcelcast.io.bufr import read_ascents
+
+    path = tmp_path / "two.bufr"
+    levels = _two_subset_message(path)
+    first, second = read_ascents(path)
+    assert (first.station, second.station) == ("10954", "11035")
+    assert (first.subset, second.subset) == (1, 2) and first.message == second.message == 1
+    np.testing.assert_array_equal(np.r_[first.pressure, second.pressure], levels["pressure"])
+    np.testing.assert_array_equal(np.r_[first.wind_speed, second.wind_speed], levels["windSpeed"])
+    assert main(["profile", str(path), "--station", "11035", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["levels"] == 4 and doc["lat"] == 48.25
+    assert any("stops low (700 hPa)" in n for n in doc["notes"])
+
+
+def test_truncated_file_is_refused(tmp_path, capsys):
+    data = data_file(SEVEN).read_bytes()
+    bad = tmp_path / "cut.bufr"
+    bad.write_bytes(data[: len(data) // 2])
+    assert main(["profile", str(bad), "--list"]) == 2
+    err = capsys.readouterr().err
+    assert str(bad) in err and "cannot be read" in err

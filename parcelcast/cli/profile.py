@@ -134,8 +134,6 @@ def _bufr_profile(args):
     """(profile, selection dict) of the ascent chosen by --station or --at; None after --list."""
     from parcelcast.io.bufr import ascent_profile, read_ascents, select_ascent
 
-    if len(args.files) != 1:
-        raise _common_error(f"give one BUFR file (got {', '.join(args.files)})")
     ascents = read_ascents(args.files[0])
     if args.list:
         rows = [a.summary() for a in ascents]
@@ -157,15 +155,10 @@ def _bufr_profile(args):
     return ascent_profile(ascent), selection
 
 
-def _common_error(message):
-    from parcelcast.errors import ParcelcastError
-
-    return ParcelcastError(message)
-
-
 def run(args) -> int:
     from pathlib import Path
 
+    from parcelcast.errors import ParcelcastError
     from parcelcast.io.bufr import is_bufr
     from parcelcast.profiles import analyse, column_from_analysis, gridded_layer_advection, read_profile_csv
 
@@ -173,7 +166,7 @@ def run(args) -> int:
     selection = None
     bufr = len(args.files) == 1 and is_bufr(args.files[0])
     if (args.station or args.list) and not bufr:
-        raise _common_error("--station and --list need one BUFR file of radiosonde ascents "
+        raise ParcelcastError("--station and --list need one BUFR file of radiosonde ascents "
                             f"(got {', '.join(args.files)})")
     if bufr:
         chosen = _bufr_profile(args)
@@ -183,7 +176,7 @@ def run(args) -> int:
         result = analyse(profile, advective_change=args.advected_change)
     elif args.at is None:
         if len(args.files) != 1 or Path(args.files[0]).suffix.lower() not in (".csv", ".txt"):
-            raise _common_error(
+            raise ParcelcastError(
                 "give one profile CSV file, one BUFR file, or analysis files with --at LAT,LON "
                 f"(got {', '.join(args.files)})")
         profile = read_profile_csv(args.files[0], args.lat, args.lon, args.time)

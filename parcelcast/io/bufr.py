@@ -242,7 +242,8 @@ def read_ascents(path) -> list[Ascent]:
             try:
                 h = ec.codes_bufr_new_from_file(fh)
             except ec.GribInternalError as exc:
-                raise InputFileError(path, f"BUFR message {message + 1} cannot be read ({exc})") from None
+                raise InputFileError(path, f"BUFR message {message + 1} cannot be read ({exc}); the file may be "
+                                     f"truncated or damaged ({message} complete message(s) before it)") from None
             if h is None:
                 break
             message += 1
