@@ -22,6 +22,9 @@ from parcelcast.cli import main
 SEVEN = "temp-20081208T12-7stations.bufr"
 HIRES = "temp-20250223T1045-hires-10954.bufr"
 STATIONS = ["71907", "71823", "89009", "91348", "91408", "71836", "83612"]
+#: the per-level arrays of an Ascent
+LEVEL_ARRAYS = ("pressure", "height", "temperature", "dewpoint", "wind_direction", "wind_speed",
+                "lat_displacement", "lon_displacement", "elapsed", "significance")
 
 
 def _eccodes():
@@ -148,9 +151,7 @@ def test_duplicated_and_shuffled_levels_are_merged(seven):
     ref = ascent_profile(a)
     # repeat level 5 (925 hPa) with its wind only, as a standard and a wind level, and shuffle
     order = np.r_[np.arange(a.nlev), 4][::-1]
-    arrays = {n: getattr(a, n)[order].copy() for n in
-              ("pressure", "height", "temperature", "dewpoint", "wind_direction", "wind_speed",
-               "lat_displacement", "lon_displacement", "elapsed", "significance")}
+    arrays = {n: getattr(a, n)[order].copy() for n in LEVEL_ARRAYS}
     arrays["temperature"][0] = arrays["dewpoint"][0] = np.nan
     prof = ascent_profile(dataclasses.replace(a, **arrays))
     np.testing.assert_array_equal(prof.pressure, ref.pressure)
@@ -165,10 +166,7 @@ def test_an_ascent_that_stops_low(seven, capsys):
 
     a = seven[STATIONS.index("91408")]
     low = a.pressure >= 70000.0
-    short = dataclasses.replace(a, **{n: getattr(a, n)[low] for n in
-                                      ("pressure", "height", "temperature", "dewpoint", "wind_direction",
-                                       "wind_speed", "lat_displacement", "lon_displacement", "elapsed",
-                                       "significance")})
+    short = dataclasses.replace(a, **{n: getattr(a, n)[low] for n in LEVEL_ARRAYS})
     prof = ascent_profile(short)
     res = analyse(prof)
     assert np.isnan(res["lifted_index_K"]) and np.isnan(res["total_totals_K"])
