@@ -30,8 +30,8 @@ def test_rules_at_their_anchor_temperatures():
     for rule in (ncep, ecmwf):
         assert saturation_vapour_pressure_model(280.0, rule) == water(280.0)
         assert saturation_vapour_pressure_model(240.0, rule) == ice(240.0)
-    # NCEP: halfway (-10 degC) is the plain mean; ECMWF: weight ((T - 250.16)/23)**2
-    assert saturation_vapour_pressure_model(263.15, ncep) == pytest.approx(0.5 * (water(263.15) + ice(263.15)))
+    # NCEP: halfway (-10 degC from the triple point) is the plain mean; ECMWF: weight ((T - 250.16)/23)**2
+    assert saturation_vapour_pressure_model(263.16, ncep) == pytest.approx(0.5 * (water(263.16) + ice(263.16)))
     w = ((263.15 - 250.16) / 23.0) ** 2
     assert saturation_vapour_pressure_model(263.15, ecmwf) == pytest.approx(w * water(263.15) + (1 - w) * ice(263.15))
     # the figures: over water overstates vapour pressure by ~10 % at -10 degC, ~48 % at -40 degC

@@ -86,7 +86,8 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None, humid
         rule, reason = rule_for(originating_centre(ds), humidity_over)
         rule_used = {"rule": rule.name, "meaning": rule.describe(), "chosen": reason}
         with np.errstate(divide="ignore", invalid="ignore"):
-            e = vapour_pressure_from_model_rh(t, np.clip(rh, 0.0, 1.0), rule)
+            # not capped at 100 %: RH over ice may exceed it; the dew point is capped at T below
+            e = vapour_pressure_from_model_rh(t, np.maximum(rh, 0.0), rule)
             td = np.minimum(dewpoint_from_vapour_pressure(e), t)
         notes.append(f"dew point (over water) from the analysis relative humidity, read as "
                      f"{rule.describe()}: {reason}")

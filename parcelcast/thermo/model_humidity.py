@@ -12,14 +12,21 @@ with w = 1 above ``t_water`` and w = 0 below ``t_ice``:
 
 * ``water``: w = 1 (observations; also the reading of an unknown source).
 * ``ice``: w = 0 below 0 degC.
-* ``ncep`` (NCEP GFS): linear in T between -20 degC and 0 degC.  Source: the GFS physics
-  saturation function ``fpvs`` (``funcphys.f90``, "vapour pressure over liquid above the
-  triple point, over ice below triple point - 20 K, linearly weighted between"), used by
-  NCEP's post-processor for RH on pressure levels.  Recalled from memory; checked here
+* ``ncep`` (NCEP GFS): over water above the triple point (273.16 K), over ice below
+  253.16 K, linear in T between.  Source: the documentation block of the GFS physics
+  saturation function ``fpvsx`` (``funcphys``: "over liquid for temperatures above the
+  triple point, over ice for temperatures 20 degrees below the triple point, and a linear
+  combination of the two for temperatures in between"), as read in public copies of that
+  code; that NCEP's pressure-level RH uses it is recalled from memory, and checked here
   against the model's own precipitable water (tests/test_model_humidity.py).
-* ``ecmwf`` (ECMWF IFS): w = ((T - T_ice) / (T_0 - T_ice))**2 between T_ice = 250.16 K
-  (-23 degC) and T_0 = 273.16 K.  Source: IFS Documentation, Part IV Physical Processes,
-  cloud scheme chapter (mixed-phase saturation).  Recalled from memory.
+* ``ecmwf`` (ECMWF IFS): over water above 0 degC, over ice below -23 degC, quadratic
+  between.  Source: ECMWF's parameter definition of relative humidity (paramId 157):
+  "with respect to saturation over ice below -23C and with respect to saturation over
+  water above 0C. In the regime in between a quadratic interpolation is applied."  The
+  weight ((T - T_ice)/(T_0 - T_ice))**2 with T_0 = 273.16 K, T_ice = T_0 - 23 K is the
+  IFS mixed-phase function (IFS Documentation Part IV, cloud scheme), recalled from
+  memory.  ECMWF's RH may exceed 100 % (with respect to ice); it is not capped at 100 %,
+  only the dew point at the temperature.
 
 Both phases use the WMO-No. 8 Magnus formulas of :mod:`parcelcast.thermo.saturation` (the
 models use their own fits, within about 0.5 % of these).  Dew points derived from the
@@ -66,16 +73,15 @@ class HumidityRule:
         if self.name == "ice":
             return "relative humidity over ice below 0 degC, over water above"
         shape = "linear" if self.exponent == 1 else "quadratic"
-        return (f"relative humidity over water above {self.t_water - 273.15:g} degC, over ice below "
-                f"{self.t_ice - 273.15:g} degC, {shape} blend between ({self.source})")
+        return (f"relative humidity over water above {self.t_water - 273.15:.0f} degC, over ice below "
+                f"{self.t_ice - 273.15:.0f} degC, {shape} blend between ({self.source})")
 
 
 RULES = {
     "water": HumidityRule("water", 0.0, 0.0, 1.0, "WMO practice for observations"),
     "ice": HumidityRule("ice", 273.15, 273.15, 1.0, "over ice below 0 degC"),
-    "ncep": HumidityRule("ncep", 253.15, 273.15, 1.0, "NCEP GFS physics fpvs, recalled from memory"),
-    "ecmwf": HumidityRule("ecmwf", 250.16, 273.16, 2.0,
-                          "ECMWF IFS documentation Part IV, mixed phase, recalled from memory"),
+    "ncep": HumidityRule("ncep", 253.16, 273.16, 1.0, "NCEP GFS physics, saturation function fpvsx"),
+    "ecmwf": HumidityRule("ecmwf", 250.16, 273.16, 2.0, "ECMWF relative humidity definition, paramId 157"),
 }
 
 #: GRIB originating centre (WMO Common Code Table C-11) -> rule.
