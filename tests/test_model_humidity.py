@@ -115,3 +115,14 @@ def test_profile_json_states_the_rule(capsys):
     doc_ice = json.loads(capsys.readouterr().out)
     assert doc_ice["humidity_rule"]["rule"] == "ice" and "--humidity-over ice" in doc_ice["humidity_rule"]["chosen"]
     assert doc_ice["precipitable_water_mm"] < doc["precipitable_water_mm"]
+
+
+def test_sounding_dew_points_stay_over_water(tmp_path, capsys):
+    from parcelcast.profiles import read_profile_csv
+
+    path = tmp_path / "s.csv"
+    path.write_text("pressure_hPa,temperature_degC,dewpoint_degC\n1000,5,0\n850,-5,-12\n700,-15,-25\n500,-30,-40\n")
+    assert main(["profile", str(path), "--json", "--humidity-over", "ice"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert "humidity_rule" not in doc and any("over water (WMO practice)" in n for n in doc["notes"])
+    np.testing.assert_allclose(read_profile_csv(path).dewpoint - 273.15, [0.0, -12.0, -25.0, -40.0], atol=1e-9)

@@ -191,6 +191,9 @@ def run(args) -> int:
         if {"temperature", "u", "v"} <= set(ds.data_vars):
             comparison = gridded_layer_advection(
                 ds, lat, lon, [(x["bottom_hPa"], x["top_hPa"]) for x in result["layers"]], args.time)
+    if args.humidity_over and (bufr or args.at is None):
+        profile.notes.append(f"--humidity-over {args.humidity_over} not used: sounding dew points are over "
+                             "water (WMO practice); the option applies to analyses' relative humidity")
     doc = build_report(profile, result, comparison, selection)
     if args.plot:
         from parcelcast.render.skewt import save_profile_diagram

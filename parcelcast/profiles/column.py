@@ -93,6 +93,9 @@ def column_from_analysis(ds, latitude: float, longitude: float, time=None, humid
                      f"{rule.describe()}: {reason}")
     elif q is not None:
         td = np.minimum(dewpoint_from_specific_humidity(q, p), t)
+        if humidity_over is not None:
+            notes.append(f"humidity over {humidity_over} not used: the analysis gives specific humidity, "
+                         "which needs no saturation rule")
     else:
         raise VariableNotFoundError("relative_humidity", src, list(ds.data_vars),
                                     "or specific_humidity: a humidity is needed for parcels")
