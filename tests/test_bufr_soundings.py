@@ -131,6 +131,11 @@ def test_below_ground_standard_levels_and_wind_only_levels(seven):
     assert (np.diff(pole.pressure) < 0).all()
 
 
+def test_tropical_ascent_says_why_thermal_wind_is_missing(capsys):
+    assert main(["profile", str(data_file(SEVEN)), "--station", "91348"]) == 0  # 6.97 N
+    assert "within 10 degrees of the equator" in capsys.readouterr().out
+
+
 def test_high_resolution_ascent_reports_its_drift(hires):
     from parcelcast.io.bufr import ascent_profile
     from parcelcast.sampling import great_circle_km

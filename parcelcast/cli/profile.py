@@ -124,6 +124,8 @@ def _text(doc) -> str:
             extra = f"   gridded {f(gridded[i]['advection_K_per_h'], '{:+.2f}')}" if gridded else ""
             lines.append(f"    {lay['bottom_hPa']:.0f}-{lay['top_hPa']:.0f} hPa  "
                          f"{f(lay['advection_K_per_h'], '{:+.2f}')}{extra}")
+        if doc["layers"][0].get("missing_because"):
+            lines.append(f"    (thermal-wind advection missing: {doc['layers'][0]['missing_because']})")
     for n in doc["notes"]:
         lines.append(f"  note: {n}")
     lines.append(doc["disclaimer"])

@@ -96,7 +96,7 @@ def thermal_wind_advection(pressure, u, v, latitude, layers_hpa=DEFAULT_LAYERS_H
     -------
     list of dict
         ``{"bottom_hPa", "top_hPa", "advection_K_per_h"}`` per layer (bottom first),
-        plus ``"advection_K_per_s"``.
+        plus ``"advection_K_per_s"``, and ``"missing_because"`` when f cannot be used.
     """
     p = np.asarray(pressure, dtype=np.float64)
     u = np.asarray(u, dtype=np.float64)
@@ -120,6 +120,10 @@ def thermal_wind_advection(pressure, u, v, latitude, layers_hpa=DEFAULT_LAYERS_H
         ut, vt = value_at_pressure(p, u, pt), value_at_pressure(p, v, pt)
         um, vm = _mean_lnp(p, u, pb, pt), _mean_lnp(p, v, pb, pt)
         adv = float(layer_advection(pb, pt, ub, vb, ut, vt, f, um, vm))
-        out.append({"bottom_hPa": pb / 100.0, "top_hPa": pt / 100.0,
-                    "advection_K_per_h": adv * SECONDS_PER_HOUR, "advection_K_per_s": adv})
+        layer = {"bottom_hPa": pb / 100.0, "top_hPa": pt / 100.0,
+                 "advection_K_per_h": adv * SECONDS_PER_HOUR, "advection_K_per_s": adv}
+        if not np.isfinite(f):
+            layer["missing_because"] = (f"no latitude, or within {EQUATORIAL_LIMIT:g} degrees of the equator "
+                                        "(the geostrophic relation is not used there)")
+        out.append(layer)
     return out
