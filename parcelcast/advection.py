@@ -158,7 +158,9 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
         raise ValueError(f"wind must be 'actual' or 'geostrophic', not {wind!r}")
     needed = ("temperature", "u", "v") if wind == "actual" else ("temperature", "geopotential")
     require(ds, *needed, purpose=f"temperature advection with the {wind} wind")
-    sliced = select_level(select_time(ds[list(needed)], time), level_hpa)
+    ground_fields = [n for n in ("surface_pressure", "orography", "geopotential")
+                     if n in ds.data_vars and n not in needed]  # for parcelcast.ground
+    sliced = select_level(select_time(ds[list(needed) + ground_fields], time), level_hpa)
     if wind == "actual":
         u, v = sliced["u"], sliced["v"]
     else:
@@ -169,7 +171,48 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
     adv.attrs["wind"] = wind
     out = xr.Dataset({"temperature": sliced["temperature"], "u": u, "v": v,
                       "temperature_advection": adv})
-    out.attrs = {k: ds.attrs[k] for k in ("source_files", "Conventions") if k in ds.attrs}
+    out = _mask_below_ground(out, sliced)
+    out.attrs = {**{k: ds.attrs[k] for k in ("source_files", "Conventions") if k in ds.attrs},
+                 **out.attrs}
     out.attrs["wind"] = wind
-    out.attrs["missing_points"] = int(adv.isnull().sum())
+    out.attrs["missing_points"] = int(out["temperature_advection"].isnull().sum())
+    out.attrs.update(_missing_attrs(out, sliced, needed, wind))
     return out
+
+
+def _mask_below_ground(out, sliced):
+    """The level's fields NaN where the level lies below the ground (see ``parcelcast.ground``);
+    the surface pressure travels along for the reason given at a point."""
+    from parcelcast.ground import below_ground, mask_below_ground
+
+    mask, method = below_ground(sliced)
+    if "surface_pressure" in sliced.data_vars:
+        out["surface_pressure"] = sliced["surface_pressure"]
+    return mask_below_ground(out, mask, method)
+
+
+def _missing_attrs(out, sliced, needed, wind) -> dict:
+    """Counts of missing grid points of the advection by reason: the attribute
+    ``missing_by_reason``, JSON text ``{reason: count}`` (so the fields still write to NetCDF)."""
+    import json
+
+    import numpy as np
+
+    from parcelcast import missing
+    from parcelcast.geostrophic import EQUATORIAL_BAND_DEG
+    from parcelcast.ground import BELOW_GROUND
+
+    adv = out["temperature_advection"]
+    lat = adv["lat"]
+    causes = [(missing.POLE_ROWS, np.abs(lat) >= 90.0 - 1e-6)]
+    if wind == "geostrophic":
+        causes.append((missing.EQUATORIAL_BAND, np.abs(lat) < EQUATORIAL_BAND_DEG))
+    if "below_ground" in out.data_vars:
+        causes.append((BELOW_GROUND, out["below_ground"]))
+    in_file = sliced[needed[0]].isnull()
+    for name in needed[1:]:
+        in_file = in_file | sliced[name].isnull()
+    causes.append((missing.MISSING_IN_FILE, in_file))
+    dims = tuple(d for d in adv.dims if d in ("lat", "lon", "y", "x"))
+    counts = missing.missing_by_reason(adv, causes, dims)
+    return {"missing_by_reason": json.dumps(counts), "missing_reasons": missing.reasons_text(counts)}

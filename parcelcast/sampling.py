@@ -11,6 +11,21 @@ import numpy as np
 from parcelcast.errors import SelectionError
 
 
+def corner_box(da, lat: float, lon: float, grid=None):
+    """The 2 x 2 grid points around ``lat, lon`` used for the bilinear value (horizontal
+    coordinates dropped); raises :class:`SelectionError` for a point outside the grid."""
+    from parcelcast.grid import grid_for
+
+    grid = grid if grid is not None else grid_for(da)
+    corners = grid.bilinear(lat, lon)
+    if corners is None:
+        raise SelectionError("point", f"{lat:g},{lon:g}", grid.extent_text())
+    (j0, j1, _), (i0, i1, _) = corners
+    ydim, xdim = grid.dims
+    box = da.isel({ydim: [j0, j1], xdim: [i0, i1]})
+    return box.drop_vars([c for c in box.coords if set(box[c].dims) & {ydim, xdim}])
+
+
 def value_at(da, lat: float, lon: float, grid=None):
     """Bilinear value of ``da`` (..., horizontal dims) at one point; leading dims kept.
 
@@ -21,15 +36,11 @@ def value_at(da, lat: float, lon: float, grid=None):
     from parcelcast.grid import grid_for
 
     grid = grid if grid is not None else grid_for(da)
-    corners = grid.bilinear(lat, lon)
-    if corners is None:
-        raise SelectionError("point", f"{lat:g},{lon:g}", grid.extent_text())
-    (j0, j1, wy), (i0, i1, wx) = corners
+    box = corner_box(da, lat, lon, grid)
+    (_, _, wy), (_, _, wx) = grid.bilinear(lat, lon)
     ydim, xdim = grid.dims
     import xarray as xr
 
-    box = da.isel({ydim: [j0, j1], xdim: [i0, i1]})
-    box = box.drop_vars([c for c in box.coords if set(box[c].dims) & {ydim, xdim}])
     wlat = xr.DataArray([1 - wy, wy], dims=ydim)
     wlon = xr.DataArray([1 - wx, wx], dims=xdim)
     out = (box * wlat * wlon).sum([ydim, xdim], skipna=False)
@@ -45,15 +56,19 @@ def great_circle_km(lat1, lon1, lat2, lon2):
 
 
 def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
-              half_width_deg: float | None = None):
+              half_width_deg: float | None = None, reasons=()):
     """Area-weighted mean over a radius or a lat-lon box around a point (NaN points skipped).
+
+    ``reasons``: optional ``(reason, bool DataArray)`` pairs saying why points may be
+    missing (e.g. ``(ground.BELOW_GROUND, mask)``), in order of precedence.
 
     Returns
     -------
     (xarray.DataArray, dict)
-        The mean (leading dims kept) and ``{"points": n, "missing": m}`` with the
-        number of grid points in the area and how many of them were NaN (skipped) at
-        any time or member.
+        The mean (leading dims kept) and ``{"points": n, "missing": m,
+        "missing_by_reason": {reason: count}}`` with the number of grid points in the
+        area, how many of them were NaN (skipped) at any time or member, and why
+        (:func:`parcelcast.missing.missing_by_reason`; the rest as "missing in the input").
     """
     if (radius_km is None) == (half_width_deg is None):
         raise ValueError("give exactly one of radius_km or half_width_deg")
@@ -82,4 +97,8 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
     leading = [d for d in da.dims if d not in grid.dims]
     missing_anywhere = (~valid).any(leading) if leading else ~valid
     missing = int((missing_anywhere & (weights > 0)).sum())
-    return mean, {"points": int(inside.sum()), "missing": missing}
+    from parcelcast.missing import missing_by_reason
+
+    by_reason = missing_by_reason(da.where(weights > 0, 0.0), list(reasons), grid.dims,
+                                  other="missing in the input")
+    return mean, {"points": int(inside.sum()), "missing": missing, "missing_by_reason": by_reason}

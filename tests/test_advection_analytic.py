@@ -150,7 +150,8 @@ def test_area_mean_constant_and_missing_counted():
     da = xr.DataArray(values, dims=("lat", "lon"), coords={"lat": lat, "lon": lon})
     mean, info = area_mean(da, 50.0, 0.0, half_width_deg=2.0)
     assert float(mean) == pytest.approx(3.0)
-    assert info == {"points": 25, "missing": 1}  # 5 x 5 box, the centre missing
+    assert info == {"points": 25, "missing": 1,  # 5 x 5 box, the centre missing
+                    "missing_by_reason": {"missing in the input": 1}}
 
 
 def test_result_metadata_cf():

@@ -83,7 +83,9 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
         parts["residual"] = observed - advective - parts["vertical"]
     else:
         parts["residual"] = observed - advective
-    out = xr.Dataset(parts)
+    from parcelcast.ground import mask_window_below_ground
+
+    out = mask_window_below_ground(xr.Dataset(parts), select_level(ds, level_hpa))
     descriptions = {
         "observed_change": "local temperature change over the window",
         "advective": "time integral of horizontal advection -V.grad T",
@@ -93,7 +95,7 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     }
     for name in out.data_vars:
         out[name].attrs = {"units": "K", "long_name": descriptions[name]}
-    out.attrs = {"start": str(start)[:19], "end": str(end)[:19], "level_hPa": level_hpa,
+    out.attrs = {**out.attrs, "start": str(start)[:19], "end": str(end)[:19], "level_hPa": level_hpa,
                  "wind": wind, "time_integration": TIME_INTEGRATION,
                  "source_files": ds.attrs.get("source_files", "")}
     return out
@@ -160,6 +162,10 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         else:
             result[key] = None
     result["vertical_available"] = "vertical" in parts
+    from parcelcast.ground import point_reason
+
+    result["missing_reason"] = point_reason(fields, lat, lon) if radius_km is None else None
+    result["below_ground_check"] = fields.attrs["below_ground_check"]
     if area is not None:
         result["area"] = area
     return result
@@ -189,5 +195,12 @@ def _at_station(fields, lat, lon, radius_km):
         valid = fields[name].notnull() if valid is None else valid & fields[name].notnull()
     means, info = {}, None
     for name in fields.data_vars:
-        means[name], info = area_mean(fields[name].where(valid), lat, lon, radius_km=radius_km)
+        means[name], info = area_mean(fields[name].where(valid), lat, lon, radius_km=radius_km,
+                                      reasons=_ground_reason(fields))
     return xr.Dataset(means), info
+
+
+def _ground_reason(fields):
+    from parcelcast.ground import BELOW_GROUND
+
+    return [(BELOW_GROUND, fields["below_ground"])] if "below_ground" in fields.coords else []

@@ -38,6 +38,7 @@ def run(args) -> int:
     from parcelcast.io.analysis import open_analysis
 
     roles = ("temperature", "u", "v") if args.wind == "actual" else ("temperature", "geopotential")
+    roles += ("surface_pressure", "orography")  # to mask levels below the ground
     ds = open_analysis(args.files, dict(args.var), roles=roles)
     fields = advection_on_level(ds, args.level, args.time, args.wind)
     if args.at is not None:
@@ -59,16 +60,21 @@ def run(args) -> int:
 
 
 def _base(fields) -> dict:
+    import json
+
     return {
         "time": iso_utc(fields["time"].values),
         "level_hPa": json_number(float(fields["level"].values) / 100.0, 3),
         "wind": fields.attrs["wind"],
         "source": fields.attrs.get("source_files", ""),
+        "below_ground_check": fields.attrs.get("below_ground_check", ""),
+        "missing_points_by_reason": json.loads(fields.attrs.get("missing_by_reason", "{}")),
     }
 
 
 def point_summary(fields, lat: float, lon: float) -> dict:
     """The JSON contract at a point: values are the member mean when members exist."""
+    from parcelcast.ground import point_reason
     from parcelcast.sampling import value_at
     from parcelcast.selection import member_mean
 
@@ -85,6 +91,7 @@ def point_summary(fields, lat: float, lon: float) -> dict:
         "advection_K_per_h": json_number(member_mean(adv), 4),
         "sign_convention": "advection = -V.grad T; positive = warm advection",
         "missing_points_in_field": fields.attrs["missing_points"],
+        "missing_reason": point_reason(fields, lat, lon),
     })
     if has_members:
         out["members"] = [
@@ -156,13 +163,19 @@ def print_text(summary: dict) -> None:
             f"  wind u, v        {_fmt(summary['u_m_s'], 'm/s')}, {_fmt(summary['v_m_s'], 'm/s')}",
             f"  advection        {_fmt(summary['advection_K_per_h'], 'K/h')}  (positive = warm)",
         ]
+        if summary["missing_reason"]:
+            lines.append(f"  missing because  {summary['missing_reason']}")
     else:
         for key, label in (("advection_max_K_per_h", "maximum"),
                            ("advection_min_K_per_h", "minimum"),
                            ("advection_mean_abs_K_per_h", "mean |advection|")):
             if key in summary:
                 lines.append(f"  {label:<17}{_fmt(summary[key], 'K/h')}")
-    lines.append(f"  missing points   {summary['missing_points_in_field']}")
+    from parcelcast.missing import reasons_text
+
+    lines.append(f"  missing points   {summary['missing_points_in_field']} "
+                 f"({reasons_text(summary['missing_points_by_reason'])})")
+    lines.append(f"  ground check     {summary['below_ground_check']}")
     lines.append(summary["disclaimer"])
     print("\n".join(lines))
 

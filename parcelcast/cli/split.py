@@ -34,6 +34,7 @@ def run(args) -> int:
     from parcelcast.io.analysis import open_analysis
 
     roles = ["temperature", "omega"] + (["u", "v"] if args.wind == "actual" else ["geopotential"])
+    roles += ["surface_pressure", "orography"]  # levels below the ground: parcelcast.ground
     if args.guidance:  # the column for the top-temperature guidance
         roles += ["geopotential", "relative_humidity", "specific_humidity", "surface_pressure"]
     ds = open_analysis(args.files, dict(args.var), roles=sorted(set(roles)))
@@ -79,6 +80,7 @@ def to_json(result: dict, args) -> dict:
         "residual_K": residual,
         "residual_holds": euler["residual_note"],
         "observed_source": euler["observed_source"],
+        "missing_reason": euler.get("missing_reason"),
         "lagrangian": {
             "followed": "the unperturbed trajectory of each analysis member; its spread "
                         "covers the cloud of starts and all members",
@@ -140,6 +142,8 @@ def print_text(s: dict) -> None:
         f"{f(s['lagrangian']['non_advective_K'])}, advective "
         f"{f(s['lagrangian']['advective_K'])}, spread {f(s['lagrangian']['spread_K'])}",
     ] + consistency_lines(s["consistency"])
+    if s.get("missing_reason"):
+        lines.insert(1, f"  missing: {s['missing_reason']}")
     for item in s.get("guidance", [])[1:]:
         if "lead_h" in item:
             up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"

@@ -58,7 +58,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 
 
 def _roles(args) -> tuple:
-    roles = ["temperature", "surface_pressure"]
+    roles = ["temperature", "surface_pressure", "orography"]
     roles += ["u", "v"] if args.wind == "actual" else ["geopotential"]
     if args.mode == "3d":
         roles += ["omega", "vertical_velocity"]
@@ -86,14 +86,42 @@ def run(args) -> int:
         output_interval=Q_(args.every, "h"), ground=args.ground,
         start_times=_series(ds, args, hours),
     )
+    _refuse_below_ground(out, args)
     if args.out:
         write_trajectories(out, args.out)
     summary = to_json_dict(out, DISCLAIMER)
+    _add_completeness(summary, out)
+    if summary["incomplete"]:
+        print(f"parcelcast track: warning: {summary['incomplete']}", file=sys.stderr)
     if args.json:
         print_json(summary)
     else:
         _print_text(summary, args.out)
     return 0
+
+
+def _refuse_below_ground(out, args) -> None:
+    """A central start below the ground is refused (there is no air there to follow)."""
+    from parcelcast.trajectories.errors import BelowGroundStartError
+
+    central = out["central"].values.astype(bool)
+    below = central & (out["status_name"].values == "below_ground_start")
+    if below.any():
+        raise BelowGroundStartError(
+            f"{args.point[0]:g},{args.point[1]:g} at {args.level:g} hPa",
+            f"{out.attrs['below_ground_check']}; at {below.sum()} of {central.sum()} start time(s)")
+
+
+def _add_completeness(summary: dict, out) -> None:
+    """``complete``, ``hours_covered``, member statuses counted, for the run and each series entry."""
+    from parcelcast.trajectories.completeness import completeness, group_completeness, incomplete_text
+
+    info = completeness(out)
+    summary.update(info)
+    summary["below_ground_check"] = out.attrs.get("below_ground_check", "")
+    summary["incomplete"] = incomplete_text(info, summary["members"][0]["status"])
+    for group, item in enumerate(summary["series"]):
+        item.update(group_completeness(out, group))
 
 
 def _series(ds, args, hours):
@@ -115,6 +143,8 @@ def _series(ds, args, hours):
 
 def _print_text(summary: dict, path) -> None:
     a = summary["arrival"]
+    if summary["incomplete"]:
+        print(summary["incomplete"])
     print(f"{a['direction']} {a['mode']} trajectories, {a['role']} {a['time']} at "
           f"{a['lat']}, {a['lon']}, {a['pressure_hPa']} hPa ({a['scheme']}, {a['wind']} wind)")
     central = summary["members"][0]

@@ -297,7 +297,7 @@ def _to_canonical(var: xr.DataArray, role: Role, path: Path) -> xr.DataArray:
             error = exc
             continue
         out = var.astype(np.float64) * (one - zero) + zero
-        if kind == "height" and role.name == "geopotential":
+        if kind == "height" and role.kind == "geopotential":
             out = out * STANDARD_GRAVITY  # geopotential height (gpm) -> geopotential
         break
     if out is None:

@@ -59,6 +59,10 @@ ROLES: dict[str, Role] = {
         Role("surface_pressure", ("surface_air_pressure",), ("sp",),
              ("sp", "ps", "psfc", "surface_pressure"),
              "pressure", "Pa", "surface_air_pressure", "surface pressure", False),
+        Role("orography", ("surface_geopotential", "surface_altitude"), ("orog", "z"),
+             ("orog", "orography", "zs", "phis", "surface_geopotential", "surface_altitude"),
+             "geopotential", "m2 s-2", "surface_geopotential",
+             "geopotential of the ground (orography)", False, also_kinds=("height",)),
         Role("near_surface_temperature", (), ("2t", "t2m"),
              ("t2m", "2t", "tas", "t2", "temperature_2m"),
              "temperature", "K", "air_temperature", "air temperature at 2 m", False),
@@ -88,4 +92,6 @@ PLAUSIBLE_RANGE = {
     "relative_humidity": (0.0, 1.5),
     "specific_humidity": (0.0, 0.06),
     "surface_pressure": (40_000.0, 110_000.0),
+    # Dead Sea shore (-430 m) to Everest (8849 m), times g0, with a margin
+    "orography": (-5_000.0, 90_000.0),
 }

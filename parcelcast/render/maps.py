@@ -50,6 +50,9 @@ def advection_map(level_fields, path=None, station=None, ax=None):
     levels = np.linspace(-limit, limit, 17)
     filled = ax.contourf(lon, lat, values, levels=levels, cmap="RdBu_r", extend="both",
                          transform=ccrs.PlateCarree())
+    if "below_ground" in level_fields.data_vars:  # grey, outside the colour scale
+        ax.contourf(lon, lat, level_fields["below_ground"].values.astype(float), levels=[0.5, 1.5],
+                    colors=["0.65"], transform=ccrs.PlateCarree())
     isotherms = ax.contour(lon, lat, level_fields["temperature"].values - 273.15,
                            levels=np.arange(-80, 50, 4), colors="0.25", linewidths=0.7,
                            transform=ccrs.PlateCarree())
@@ -77,7 +80,8 @@ def advection_map(level_fields, path=None, station=None, ax=None):
     level = float(level_fields["level"].values) / 100 if "level" in level_fields.coords else None
     wind = level_fields.attrs.get("wind", "actual")
     ax.set_title(f"Temperature advection at {level:g} hPa ({wind} wind), valid {when}\n"
-                 "contours: isotherms (\u00b0C); arrows: wind. Guidance only, not an official forecast.",
+                 "contours: isotherms (\u00b0C); arrows: wind; grey: level below the ground.\n"
+                 "Guidance only, not an official forecast.",
                  fontsize=10)
     if path is not None:
         with atomic_path(path) as tmp:

@@ -162,10 +162,31 @@ def compute_trajectories(
             z = pp
         res = integrate(src, la, lo, z, s, span_s, member=mem, mode=mode, scheme=scheme,
                         output_interval=out_s, ground=ground, samples=want)
+        ground_check = _mark_below_ground_starts(ds, res, la, lo, pp, mem, s)
         results.append(res)
         cloud = np.tile(np.arange(members), amembers.size)
         meta.append((g, mem, cloud, s))
-    return _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, src.steady)
+    out = _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, src.steady)
+    out.attrs["below_ground_check"] = ground_check
+    out.attrs["hours_requested"] = abs(span_s) / 3600.0  # see trajectories/completeness.py
+    return out
+
+
+def _mark_below_ground_starts(ds, res, la, lo, pp, mem, t) -> str:
+    """Starts below the ground keep only their start point, with status
+    ``below_ground_start``; returns how the ground was checked (``parcelcast.ground``)."""
+    from parcelcast.ground import start_below_ground
+    from parcelcast.trajectories.interpolate import BELOW_GROUND_START
+
+    below, _surface, method = start_below_ground(ds, la, lo, pp, from_seconds([t])[0])
+    below = below[np.clip(mem, 0, below.shape[0] - 1), np.arange(la.size)]
+    if below.any():
+        res.status[below] = BELOW_GROUND_START
+        res.n_valid[below] = 1
+        for arr in (res.lat, res.lon, res.pressure, *res.samples.values()):
+            arr[below, 1:] = np.nan
+        res.on_ground[below, 1:] = False
+    return method
 
 
 def _theta_at(src, la, lo, pp, mem, t):

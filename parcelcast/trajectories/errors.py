@@ -33,3 +33,13 @@ class MissingInputError(TrajectoryError):
         super().__init__(
             f"{mode} trajectories need {needed}; the analysis has: {', '.join(self.found) or '(none)'}."
         )
+
+
+class BelowGroundStartError(TrajectoryError):
+    """The start point lies below the ground at the requested level: there is no air to follow."""
+
+    def __init__(self, point: str, how: str):
+        self.point = point
+        self.how = how
+        super().__init__(f"start {point} lies below the ground ({how}); choose a level above "
+                         "the surface there (a lower pressure)")

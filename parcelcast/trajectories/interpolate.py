@@ -30,9 +30,11 @@ from parcelcast.constants import EARTH_RADIUS
 from parcelcast.trajectories.errors import TrajectoryGridError
 from parcelcast.trajectories.sphere import cartesian_to_wind, to_lat_lon, wind_to_cartesian
 
-#: status codes shared by the kernel (order = precedence is not implied)
-OK, LEFT_DOMAIN, LEFT_TIME_RANGE, HIT_GROUND, MISSING_DATA = 0, 1, 2, 3, 4
-STATUS_NAMES = ("ok", "left_domain", "left_time_range", "hit_ground", "missing_data")
+#: status codes shared by the kernel (order = precedence is not implied); the last is set
+#: by the caller for a start that lies below the ground (it is not integrated)
+OK, LEFT_DOMAIN, LEFT_TIME_RANGE, HIT_GROUND, MISSING_DATA, BELOW_GROUND_START = 0, 1, 2, 3, 4, 5
+STATUS_NAMES = ("ok", "left_domain", "left_time_range", "hit_ground", "missing_data",
+                "below_ground_start")
 
 
 @dataclass(frozen=True)
