@@ -48,11 +48,13 @@ def value_at(da, lat: float, lon: float, grid=None):
     return out.assign_coords(lat=lat, lon=lon)
 
 
-def great_circle_km(lat1, lon1, lat2, lon2):
-    """Great-circle distance (km) on the sphere of radius EARTH_RADIUS (haversine)."""
+def great_circle_km(lat1, lon1, lat2, lon2, radius_m: float | None = None):
+    """Great-circle distance (km) on a sphere of ``radius_m`` (default EARTH_RADIUS), haversine."""
+    from parcelcast.grid.earth import DEFAULT_RADIUS
     from parcelcast.trajectories.sphere import great_circle_distance
 
-    return great_circle_distance(lat1, lon1, lat2, lon2) / 1000.0
+    radius = DEFAULT_RADIUS if radius_m is None else radius_m
+    return great_circle_distance(lat1, lon1, lat2, lon2, radius) / 1000.0
 
 
 def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
@@ -77,7 +79,9 @@ def area_mean(da, lat: float, lon: float, radius_km: float | None = None,
     grid = grid_for(da)
     lat2d, lon2d = grid.latitude_field(), grid.longitude_field()
     if radius_km is not None:
-        inside = great_circle_km(lat, lon, lat2d, lon2d) <= radius_km
+        from parcelcast.grid.earth import radius_of
+
+        inside = great_circle_km(lat, lon, lat2d, lon2d, radius_of(da)) <= radius_km
         what = f"radius {radius_km:g} km"
     else:
         dlon = np.abs(((lon2d - lon + 180.0) % 360.0) - 180.0)

@@ -4,7 +4,8 @@ Derivatives are in metres along the local east and north directions:
 
     d/dx = 1 / (a cos(lat)) d/dlon,     d/dy = 1 / a d/dlat      (lon, lat in radians)
 
-with a = :data:`parcelcast.constants.EARTH_RADIUS`.  Whether longitude wraps is
+with a the Earth's radius the file declares (:mod:`parcelcast.grid.earth`; default
+:data:`parcelcast.constants.EARTH_RADIUS`).  Whether longitude wraps is
 declared (``periodic_lon``); :func:`grid_for` infers it from the coordinates
 and refuses a declaration the coordinates contradict.  At a pole row
 (|lat| = 90) the eastward derivative is undefined and is NaN.
@@ -35,6 +36,8 @@ class LatLonGrid:
         Longitudes, degrees east, strictly ascending (may exceed 180 across the dateline).
     periodic_lon : bool
         True if the grid closes around the globe (longitude wraps).
+    radius : float
+        The Earth's radius (m) of the metric (:mod:`parcelcast.grid.earth`).
     """
 
     lat: np.ndarray
@@ -210,4 +213,6 @@ def grid_for(ds, periodic_lon: bool | None = None):
         periodic_lon = is_global
     elif periodic_lon and not is_global:
         raise GridError("longitude declared periodic but the grid does not go round the globe")
-    return LatLonGrid(ds["lat"].values, lon, periodic_lon)
+    from parcelcast.grid.earth import radius_of
+
+    return LatLonGrid(ds["lat"].values, lon, periodic_lon, radius=radius_of(ds))

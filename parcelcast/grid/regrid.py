@@ -35,7 +35,7 @@ def to_lat_lon(ds, spacing_deg: float | None = None):
     lat2d, lon2d = grid.latitude_field(), grid.longitude_field()
     if spacing_deg is None:
         step_m = float(np.median(np.concatenate([np.diff(grid.x), np.diff(grid.y)])))
-        spacing_deg = np.rad2deg(step_m / EARTH_RADIUS)
+        spacing_deg = np.rad2deg(step_m / EARTH_RADIUS)  # a choice of spacing only
     centre = float(np.rad2deg(np.arctan2(np.sin(np.deg2rad(lon2d)).mean(),
                                          np.cos(np.deg2rad(lon2d)).mean())))
     rel = ((lon2d - centre + 180.0) % 360.0) - 180.0
@@ -71,6 +71,9 @@ def to_lat_lon(ds, spacing_deg: float | None = None):
     out = xr.Dataset(variables, coords={**coords, "lat": ("lat", lat), "lon": ("lon", lon)})
     out["lat"].attrs = {"units": "degrees_north", "standard_name": "latitude", "axis": "Y"}
     out["lon"].attrs = {"units": "degrees_east", "standard_name": "longitude", "axis": "X"}
+    from parcelcast.grid import earth
+
+    earth.declare(out, earth.from_cf(crs.to_cf()))  # the projection's own Earth
     out.attrs = dict(ds.attrs)
     out.attrs["regridded"] = (f"bilinear from the projected grid to {spacing_deg:.3f} deg "
                               "latitude-longitude; outside the projected domain: missing")

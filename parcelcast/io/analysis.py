@@ -26,6 +26,7 @@ from parcelcast.errors import (
     VariableNotFoundError,
     warn,
 )
+from parcelcast.grid import earth as earth_radius
 from parcelcast.io import coords as coordinates
 from parcelcast.io.roles import PLAUSIBLE_RANGE, ROLES, Role
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
@@ -138,6 +139,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
         upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
         single = [coordinates.standardise(g, path, crs) for g in groups.single]
         grid_relative = groups.scan.winds_grid_relative
+        earth = earth_radius.from_grib_keys(groups.scan.earth)
         if groups.scan.damaged:
             damaged = (
                 f"{groups.scan.decoded} GRIB message(s) decoded, {groups.scan.failed} could not be "
@@ -161,6 +163,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
         upper = [std]
         single = [std]
         grid_relative = None  # NetCDF: declared by each wind's standard_name
+        earth = earth_radius.from_netcdf(raw)
     raw_names = sorted({n for part in upper + single for n in part.data_vars})
     found, raw_vars = {}, {}
     for role_name in wanted:
@@ -178,6 +181,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
                                     hint="no known quantity was recognised")
     ds = xr.Dataset(found)
     ds = coordinates.normalise(ds, path)
+    earth_radius.declare(ds, earth)
     if "x" in ds.dims:
         ds = _winds_to_earth(ds, raw_vars, grid_relative, path)
     for name in ds.data_vars:

@@ -50,6 +50,7 @@ class GribScan:
     fields: list[str] = field(default_factory=list)
     grid: dict = field(default_factory=dict)  # projection keys of the first projected message
     wind_flags: set = field(default_factory=set)  # u/v relative to the grid? one per message
+    earth: dict = field(default_factory=dict)  # shape of the Earth keys of the first message
 
     @property
     def winds_grid_relative(self) -> bool | None:
@@ -86,6 +87,12 @@ def _note_projection(gid, name: str, scan: GribScan) -> None:
     """Record the projection of the grid and whether u/v are relative to it."""
     import eccodes
 
+    if not scan.earth:
+        for key in ("shapeOfTheEarth", "radius", "earthMajorAxis", "earthMinorAxis"):
+            try:
+                scan.earth[key] = eccodes.codes_get(gid, key, float)
+            except Exception:  # key absent for this shape of the Earth (or edition)
+                pass
     grid_type = eccodes.codes_get(gid, "gridType")
     if grid_type not in _PROJECTION_KEYS:
         return
@@ -93,11 +100,7 @@ def _note_projection(gid, name: str, scan: GribScan) -> None:
         keys = {"gridType": grid_type}
         for key in _PROJECTION_KEYS[grid_type]:
             keys[key] = eccodes.codes_get(gid, key)
-        for key in ("radius", "earthMajorAxis", "earthMinorAxis"):
-            try:
-                keys[key] = eccodes.codes_get(gid, key, float)
-            except Exception:  # key absent for this shape of the Earth
-                pass
+        keys.update({k: v for k, v in scan.earth.items() if k != "shapeOfTheEarth"})
         scan.grid = keys
     if name in ("u", "v"):
         # WMO GRIB2 flag table 3.3 (GRIB1 table 7), bit 5 (value 8): u/v relative to the grid

@@ -90,7 +90,10 @@ def build_source(ds, mode: str = "isobaric", wind: str = "actual", samples=(),
     has_member = "member" in ds.dims
     has_level = "level" in ds.dims and ds.sizes["level"] > 1
     levels = ds["level"].values.astype(np.float64) if has_level else None
-    geom = GridGeometry.from_coords(ds["lat"].values, ds["lon"].values, levels, periodic_lon)
+    from parcelcast.grid.earth import radius_of
+
+    geom = GridGeometry.from_coords(ds["lat"].values, ds["lon"].values, levels, periodic_lon,
+                                    radius=radius_of(ds))
     extra = {}
     if mode == "3d":
         if "omega" in present:

@@ -55,6 +55,8 @@ class GridGeometry:
         Pressure levels in Pa, descending (surface first); None for a single-level input.
     periodic_lon : bool
         True when longitude wraps (global grid).
+    radius : float
+        The Earth's radius (m) of the analysis: winds become angular velocities with it.
     """
 
     lat: np.ndarray
@@ -63,10 +65,12 @@ class GridGeometry:
     periodic_lon: bool
     pad_south: bool = False
     pad_north: bool = False
+    radius: float = EARTH_RADIUS  # the Earth's radius (m) of the analysis (parcelcast.grid.earth)
     _cache: dict = field(default_factory=dict, compare=False, repr=False)
 
     @classmethod
-    def from_coords(cls, lat, lon, levels=None, periodic_lon: bool | None = None) -> GridGeometry:
+    def from_coords(cls, lat, lon, levels=None, periodic_lon: bool | None = None,
+                    radius: float = EARTH_RADIUS) -> GridGeometry:
         """Check canonical coordinates and derive the geometry.
 
         Parameters
@@ -80,6 +84,8 @@ class GridGeometry:
         periodic_lon : bool, optional
             Whether longitude wraps.  When None it is declared periodic if the spacing is
             uniform and ``nx * spacing`` equals 360 degrees (within 1e-6 degree).
+        radius : float
+            The Earth's radius (m) the analysis declares (:mod:`parcelcast.grid.earth`).
         """
         lat = np.asarray(lat, dtype=np.float64)
         lon = np.asarray(lon, dtype=np.float64)
@@ -109,7 +115,7 @@ class GridGeometry:
             pad_s = lat[0] > -90 + 1e-9
             pad_n = lat[-1] < 90 - 1e-9
             lat = np.concatenate([[-90.0] if pad_s else [], lat, [90.0] if pad_n else []])
-        return cls(lat, lon, levels, bool(periodic_lon), bool(pad_s), bool(pad_n))
+        return cls(lat, lon, levels, bool(periodic_lon), bool(pad_s), bool(pad_n), float(radius))
 
     @property
     def nlev(self) -> int:
@@ -119,7 +125,7 @@ class GridGeometry:
     def grid_length(self) -> float:
         """Smallest grid spacing in metres, measured at the equator: ``a * min(dlat, dlon)``."""
         d = min(np.min(np.diff(self.lat)), np.min(np.diff(self.lon)))
-        return float(EARTH_RADIUS * np.deg2rad(d))
+        return float(self.radius * np.deg2rad(d))
 
     @property
     def min_dlogp(self) -> float:
@@ -478,7 +484,7 @@ class CornerCache:
 
 
 def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt: float,
-                  omega: bool = False, radius: float = EARTH_RADIUS,
+                  omega: bool = False, radius: float | None = None,
                   cache: CornerCache | None = None):
     """Wind (and omega) at parcels, interpolated in space and time, in one compiled pass.
 
@@ -500,6 +506,8 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
         Prepared time slices (``"u"``, ``"v"``, and ``"omega"`` when ``omega``).
     wt : float
         Weight of ``b``.
+    radius : float, optional
+        The Earth's radius (m); default ``geom.radius``.
     cache : CornerCache, optional
         Corner values kept between calls on the same parcels and slices (see
         :class:`CornerCache`); without it every corner is read.
@@ -514,6 +522,8 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
         As the attributes of :class:`Location`.
     """
     from parcelcast.trajectories._kernel import wind_tendency as kernel
+
+    radius = geom.radius if radius is None else radius
 
     x = np.ascontiguousarray(x, dtype=np.float64)
     n = x.shape[0]
