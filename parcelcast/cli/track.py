@@ -18,6 +18,16 @@ def _positive_hours(text: str) -> float:
     return value
 
 
+def _positive_km(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a distance in km such as 50; got {text!r}") from None
+    if not value > 0:
+        raise argparse.ArgumentTypeError(f"the cloud radius must be positive; got {text!r}")
+    return value
+
+
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_input_arguments(parser)
     parser.add_argument("--from", dest="point", type=lat_lon, required=True, metavar="LAT,LON",
@@ -38,8 +48,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--scheme", choices=("petterssen", "rk4"), default="petterssen",
                         help="time stepping: iterative Petterssen or 4th-order Runge-Kutta")
     parser.add_argument("--members", type=int, default=1, metavar="N",
-                        help="cloud of N starts around the point (half a grid length, +-5 hPa); "
-                        "every member of an ensemble analysis is run as well")
+                        help="cloud of N starts around the point (on a ring of --cloud-radius, "
+                        "+-5 hPa); every member of an ensemble analysis is run as well")
+    parser.add_argument("--cloud-radius", type=_positive_km, metavar="KM",
+                        help="radius of the ring of cloud starts in km (default: half a grid length)")
     parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
                         help="advecting wind: analysed or geostrophic from geopotential")
     parser.add_argument("--series", type=int, default=1, metavar="N",
@@ -84,6 +96,7 @@ def run(args) -> int:
         ds, lat, lon, Q_(args.level, "hPa"), Q_(hours, "h"), args.start,
         mode=args.mode, scheme=args.scheme, wind=args.wind, members=args.members,
         output_interval=Q_(args.every, "h"), ground=args.ground,
+        cloud_radius=None if args.cloud_radius is None else Q_(args.cloud_radius, "km"),
         start_times=_series(ds, args, hours),
     )
     _refuse_below_ground(out, args)
@@ -118,10 +131,29 @@ def _add_completeness(summary: dict, out) -> None:
 
     info = completeness(out)
     summary.update(info)
+    summary.update(_spread_parts(out, 0))
     summary["below_ground_check"] = out.attrs.get("below_ground_check", "")
     summary["incomplete"] = incomplete_text(info, summary["members"][0]["status"])
     for group, item in enumerate(summary["series"]):
         item.update(group_completeness(out, group))
+        item.update(_spread_parts(out, group))
+
+
+def _spread_parts(out, group: int) -> dict:
+    """The start cloud's own size and the growth of the spread by the end (km), apart."""
+    import numpy as np
+
+    from parcelcast.cli._common import json_number
+
+    growth = out["spread_growth"].values[group]
+    last = np.flatnonzero(np.isfinite(growth))
+    end = last[-1] if last.size else None
+    return {
+        "start_spread_km": json_number(out["start_spread"].values[group] / 1000.0, 2),
+        "spread_growth_km": None if end is None else json_number(growth[end] / 1000.0, 2),
+        "spread_growth_fraction": None if end is None else json_number(
+            out["spread_growth_fraction"].values[group, end], 4),
+    }
 
 
 def _series(ds, args, hours):
@@ -154,8 +186,9 @@ def _print_text(summary: dict, path) -> None:
         print(f"  {p['time']}  {p['lat']:8.3f} {p['lon']:9.3f}  {p['pressure_hPa']:7.1f} hPa{t}")
     n = len(summary["members"])
     if n > 1:
-        print(f"{n} members; spread at the end {summary['spread_km']} km "
-              f"({summary['spread_fraction']} of the distance travelled)")
+        print(f"{n} members; spread at the end {summary['spread_km']} km: the start cloud's own "
+              f"{summary['start_spread_km']} km plus growth {summary['spread_growth_km']} km "
+              f"({summary['spread_growth_fraction']} of the distance travelled)")
     for item in summary["series"][1:]:
         end = item["end"]
         print(f"  also {item['time']}: {item['status']}, ends {end['lat']}, {end['lon']}, "

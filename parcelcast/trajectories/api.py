@@ -94,7 +94,9 @@ def compute_trajectories(
         follow the integration (backwards in time for back trajectories).  Variables
         ``time, lat, lon, pressure, on_ground`` and samples ``(trajectory, obs)``;
         ``status, member, analysis_member, start_group, central (trajectory)``;
-        ``spread, spread_fraction (start_group, obs)``.
+        ``spread, spread_fraction, spread_growth, spread_growth_fraction (start_group, obs)``,
+        ``start_spread (start_group)`` (see ``ensemble.py``); attrs ``hours_requested``,
+        ``below_ground_check``, ``earth_radius_m`` and its source.
 
     Examples
     --------
@@ -144,7 +146,7 @@ def compute_trajectories(
                                       f"{str(from_seconds([times[0]])[0])[:19]} .. "
                                       f"{str(from_seconds([times[-1]])[0])[:19]}")
     amembers = np.arange(src.n_members if analysis_members else 1)
-    cl_lat, cl_lon, cl_dp = cloud_starts(lat, lon, members, radius, dp)
+    cl_lat, cl_lon, cl_dp = cloud_starts(lat, lon, members, radius, dp, geom.radius)
     results = []
     meta = []
     for g, s in enumerate(starts):
@@ -230,7 +232,9 @@ def _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, stead
     amem = np.concatenate([m[1] for m in meta])
     cloud = np.concatenate([m[2] for m in meta])
     central = (amem == 0) & (cloud == 0)
-    sp = spread(lat, lon, group, central)
+    from parcelcast.grid.earth import radius_of, source_of
+
+    sp = spread(lat, lon, group, central, radius_of(ds))
     ntraj = lat.shape[0]
     dims = ("trajectory", "obs")
     out = xr.Dataset(
@@ -260,6 +264,12 @@ def _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, stead
                 "units": "m", "long_name": "mean distance of members from the central trajectory"}),
             "spread_fraction": (("start_group", "obs"), sp["fraction"], {
                 "units": "1", "long_name": "spread divided by distance travelled along the central trajectory"}),
+            "start_spread": (("start_group",), sp["start_m"], {
+                "units": "m", "long_name": "spread at the start: the cloud's own size"}),
+            "spread_growth": (("start_group", "obs"), sp["growth_m"], {
+                "units": "m", "long_name": "spread minus the spread at the start (negative: converging)"}),
+            "spread_growth_fraction": (("start_group", "obs"), sp["growth_fraction"], {
+                "units": "1", "long_name": "spread growth divided by distance travelled along the central trajectory"}),
         },
         attrs={
             "featureType": "trajectory",
@@ -273,6 +283,8 @@ def _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, stead
             "steady_flow": int(bool(steady)),
             "time_step_s": float(max(r.dt for r in results)),
             "source_files": ds.attrs.get("source_files", ""),
+            "earth_radius_m": radius_of(ds),
+            "earth_radius_source": source_of(ds),
             **({"regridded": ds.attrs["regridded"]} if "regridded" in ds.attrs else {}),
         },
     )
