@@ -63,7 +63,8 @@ def geostrophic_wind(ds, grid=None, band_deg: float = EQUATORIAL_BAND_DEG):
     )
     note = f"geostrophic wind from geopotential; NaN within {band_deg:g} deg of the equator"
     for da, name, std in ((u_g, "u", "eastward"), (v_g, "v", "northward")):
-        da.attrs = {"units": "m s-1", "standard_name": f"{std}_wind",
+        # CF standard names of the geostrophic wind (CF standard name table)
+        da.attrs = {"units": "m s-1", "standard_name": f"geostrophic_{std}_wind",
                     "long_name": f"{std} geostrophic wind", "comment": note}
         da.name = name
     dims = [d for d in phi.dims]
