@@ -87,6 +87,11 @@ def compute_trajectories(
     steady : bool, optional
         Treat a single analysis time as a steady flow (default when there is one time).
 
+    A start below the ground (:func:`parcelcast.ground.start_below_ground`: surface pressure,
+    else geopotential against the orography) is not followed: it keeps its start point only,
+    with status ``below_ground_start``.  Whether the requested hours were covered:
+    :mod:`parcelcast.trajectories.completeness`.
+
     Returns
     -------
     xarray.Dataset
@@ -164,9 +169,9 @@ def compute_trajectories(
             z = pp
         res = integrate(src, la, lo, z, s, span_s, member=mem, mode=mode, scheme=scheme,
                         output_interval=out_s, ground=ground, samples=want)
-        ground_check = _mark_below_ground_starts(ds, res, la, lo, pp, mem, s)
-        results.append(res)
         cloud = np.tile(np.arange(members), amembers.size)
+        ground_check = _mark_below_ground_starts(ds, res, la, lo, pp, mem, cloud, s)
+        results.append(res)
         meta.append((g, mem, cloud, s))
     out = _assemble(results, meta, ds, info, mode, scheme, wind, ground, span_s, src.steady)
     out.attrs["below_ground_check"] = ground_check
@@ -174,14 +179,17 @@ def compute_trajectories(
     return out
 
 
-def _mark_below_ground_starts(ds, res, la, lo, pp, mem, t) -> str:
+def _mark_below_ground_starts(ds, res, la, lo, pp, mem, cloud, t) -> str:
     """Starts below the ground keep only their start point, with status
-    ``below_ground_start``; returns how the ground was checked (``parcelcast.ground``)."""
+    ``below_ground_start``; returns how the ground was checked (``parcelcast.ground``).
+    Each cloud position is checked once, for every analysis member."""
     from parcelcast.ground import start_below_ground
     from parcelcast.trajectories.interpolate import BELOW_GROUND_START
 
-    below, _surface, method = start_below_ground(ds, la, lo, pp, from_seconds([t])[0])
-    below = below[np.clip(mem, 0, below.shape[0] - 1), np.arange(la.size)]
+    first = np.unique(cloud, return_index=True)[1]  # one start per cloud member
+    below, _surface, method = start_below_ground(ds, la[first], lo[first], pp[first],
+                                                 from_seconds([t])[0])
+    below = below[np.clip(mem, 0, below.shape[0] - 1), cloud]
     if below.any():
         res.status[below] = BELOW_GROUND_START
         res.n_valid[below] = 1
