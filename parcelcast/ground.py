@@ -76,16 +76,11 @@ def mask_below_ground(fields, mask, method: str):
     the attribute ``below_ground_check`` (how it was decided); without a mask only the
     attribute (saying it could not be checked).  Surface fields stay as they are.
     """
-    out = fields.copy()
-    out.attrs["below_ground_check"] = method
-    if mask is None:
-        return out
-    for name in list(out.data_vars):
-        if "level" in out[name].coords and name not in ("surface_pressure", "orography"):
-            attrs = dict(out[name].attrs)
-            out[name] = out[name].where(~mask)
-            out[name].attrs = {**attrs, "below_ground": f"NaN where {BELOW_GROUND} ({method})"}
-    out["below_ground"] = mask
+    on_levels = [name for name in fields.data_vars if "level" in fields[name].coords
+                 and name not in ("surface_pressure", "orography")]
+    out = _masked(fields, on_levels, mask, method)
+    if mask is not None:
+        out["below_ground"] = mask
     return out
 
 
@@ -97,17 +92,26 @@ def mask_window_below_ground(parts, level):
     parts) and ``below_ground_check`` says how it was decided.
     """
     mask, method = below_ground(level)
-    out = parts.copy()
+    if mask is not None and "time" in mask.dims:
+        mask = mask.any("time")
+    out = _masked(parts, list(parts.data_vars), mask, method)
+    if mask is None:
+        return out
+    return out.assign_coords(below_ground=mask.drop_vars([c for c in mask.coords if c not in mask.dims]))
+
+
+def _masked(ds, names, mask, method: str):
+    """A copy of ``ds`` with ``names`` NaN where ``mask`` (None: unchanged) and the attribute
+    ``below_ground_check`` = ``method``."""
+    out = ds.copy()
     out.attrs["below_ground_check"] = method
     if mask is None:
         return out
-    if "time" in mask.dims:
-        mask = mask.any("time")
-    for name in out.data_vars:
+    for name in names:
         attrs = dict(out[name].attrs)
         out[name] = out[name].where(~mask)
         out[name].attrs = {**attrs, "below_ground": f"NaN where {BELOW_GROUND} ({method})"}
-    return out.assign_coords(below_ground=mask.drop_vars([c for c in mask.coords if c not in mask.dims]))
+    return out
 
 
 def point_reason(fields, lat: float, lon: float, grid=None) -> str | None:

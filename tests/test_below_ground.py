@@ -51,7 +51,7 @@ def test_altiplano_is_below_ground_by_the_files_surface_pressure(gfs_850):
 
 
 def test_mask_matches_the_surface_pressure_read_independently(gfs_850):
-    lat, lon, sp = _eccodes_surface_pressure()
+    _, lon, sp = _eccodes_surface_pressure()
     expected = (sp < 850e2)[::-1]  # file is north to south; canonical south to north
     expected = np.roll(expected, -int(np.flatnonzero(lon == 180.0)[0]), axis=1)  # -180..180
     got = gfs_850["below_ground"].squeeze().values

@@ -127,7 +127,11 @@ def _refuse_below_ground(out, args) -> None:
 
 def _add_completeness(summary: dict, out) -> None:
     """``complete``, ``hours_covered``, member statuses counted, for the run and each series entry."""
-    from parcelcast.trajectories.completeness import completeness, group_completeness, incomplete_text
+    from parcelcast.trajectories.completeness import (
+        completeness,
+        group_completeness,
+        incomplete_text,
+    )
 
     info = completeness(out)
     summary.update(info)
