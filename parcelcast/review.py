@@ -94,6 +94,7 @@ def build_review(case: Case, ds=None) -> dict:
 
     if ds is None:
         roles = ["temperature", "omega"] + (["u", "v"] if case.wind == "actual" else ["geopotential"])
+        roles += ["surface_pressure", "orography"]  # levels below the ground (parcelcast.ground)
         ds = open_analysis(case.analyses, roles=roles)
     times = ds["time"].values
     inside = times[(times > case.start) & (times <= case.end)]
