@@ -47,6 +47,12 @@ def test_series_entries_carry_their_own_completeness(capsys):
     assert first["complete"] is True and first["hours_covered"] == 30.0
     assert second["complete"] is False and second["hours_covered"] == 24.0
     assert out["complete"] is False and out["groups_incomplete"] == 1
+    assert main(["track", str(data_file(ERA5)), *TRACK, "--back", "30", "--series", "2",
+                 "--series-step", "12"]) == 0
+    text = capsys.readouterr().out.splitlines()
+    assert text[0].startswith("INCOMPLETE") and "the shortest 24 h" in text[0]
+    assert "1 of 2 start times incomplete" in text[0]
+    assert any(line.startswith("  also") and "INCOMPLETE: 24 of 30 h" in line for line in text)
 
 
 def test_complete_run_says_complete(capsys):

@@ -137,7 +137,7 @@ def _add_completeness(summary: dict, out) -> None:
     summary.update(info)
     summary.update(_spread_parts(out, 0))
     summary["below_ground_check"] = out.attrs.get("below_ground_check", "")
-    summary["incomplete"] = incomplete_text(info, summary["members"][0]["status"])
+    summary["incomplete"] = incomplete_text(info)
     for group, item in enumerate(summary["series"]):
         item.update(group_completeness(out, group))
         item.update(_spread_parts(out, group))
@@ -195,7 +195,9 @@ def _print_text(summary: dict, path) -> None:
               f"({summary['spread_growth_fraction']} of the distance travelled)")
     for item in summary["series"][1:]:
         end = item["end"]
-        print(f"  also {item['time']}: {item['status']}, ends {end['lat']}, {end['lon']}, "
+        covered = "" if item["complete"] else (
+            f" (INCOMPLETE: {item['hours_covered']:g} of {item['hours_requested']:g} h)")
+        print(f"  also {item['time']}: {item['status']}{covered}, ends {end['lat']}, {end['lon']}, "
               f"{end['pressure_hPa']} hPa, spread {item['spread_km']} km")
     if path:
         print(f"written: {path}")

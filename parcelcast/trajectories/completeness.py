@@ -62,7 +62,8 @@ def group_completeness(ds, group: int) -> dict:
 
 def completeness(ds) -> dict:
     """Completeness of the whole result: as :func:`group_completeness` over every group
-    (``hours_covered`` is the first group's central path) plus ``groups_incomplete``."""
+    (``hours_covered`` is the first group's central path) plus ``groups`` and
+    ``groups_incomplete`` (start times of a series)."""
     groups = np.unique(ds["start_group"].values)
     each = [group_completeness(ds, int(g)) for g in groups]
     first = each[0]
@@ -77,19 +78,21 @@ def completeness(ds) -> dict:
         "trajectories": sum(item["trajectories"] for item in each),
         "trajectories_complete": sum(item["trajectories_complete"] for item in each),
         "member_statuses": dict(sorted(statuses.items())),
+        "groups": len(each),
         "groups_incomplete": sum(not item["complete"] for item in each),
     }
 
 
-def incomplete_text(info: dict, central_status: str) -> str:
-    """One line for an incomplete result (empty when complete)."""
+def incomplete_text(info: dict) -> str:
+    """One line for an incomplete result (empty when complete): hours covered by the central
+    path and by the shortest trajectory, the statuses counted and explained."""
     if info["complete"]:
         return ""
-    why = ENDED_BECAUSE.get(central_status, central_status)
-    counts = ", ".join(f"{n} {name}" for name, n in info["member_statuses"].items())
+    counts = ", ".join(f"{n} {name}" + ("" if name == "ok" else f": {ENDED_BECAUSE.get(name, name)}")
+                       for name, n in info["member_statuses"].items())
     text = (f"INCOMPLETE: the central path covers {info['hours_covered']:g} of the "
-            f"{info['hours_requested']:g} h asked for ({central_status}: {why}); "
+            f"{info['hours_requested']:g} h asked for, the shortest {info['hours_covered_min']:g} h; "
             f"{info['trajectories_complete']} of {info['trajectories']} trajectories complete ({counts})")
-    if info.get("groups_incomplete", 0) > 1:
-        text += f"; {info['groups_incomplete']} start times incomplete"
+    if "groups_incomplete" in info and info.get("groups", 1) > 1:
+        text += f"; {info['groups_incomplete']} of {info['groups']} start times incomplete"
     return text
