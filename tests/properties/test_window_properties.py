@@ -3,7 +3,7 @@
 For any ascending analysis times and any window inside them: Simpson's nodes lie in the
 window, their weights sum to its length, and they integrate the product of two linear
 interpolants exactly (second route: the closed form of the integral of a product of two
-linear functions on each piece, int_a^b (p + q s)(r + t s) ds, expanded by hand).
+linear functions on each piece, int (p + q u)(r + t u) du in each piece's own coordinate u, expanded by hand).
 """
 
 from __future__ import annotations
@@ -29,12 +29,14 @@ def _product_integral(ts, f, g, a, b):
         lo, hi = max(ts[k], a), min(ts[k + 1], b)
         if hi <= lo:
             continue
+        # in the piece's own coordinate u = s - ts[k], so no large powers of s cancel
         h = ts[k + 1] - ts[k]
         q, t = (f[k + 1] - f[k]) / h, (g[k + 1] - g[k]) / h
-        p, r = f[k] - q * ts[k], g[k] - t * ts[k]
+        p, r = f[k], g[k]
 
         def primitive(s):
-            return p * r * s + (p * t + q * r) * s**2 / 2.0 + q * t * s**3 / 3.0
+            u = s - ts[k]
+            return p * r * u + (p * t + q * r) * u**2 / 2.0 + q * t * u**3 / 3.0
 
         total += primitive(hi) - primitive(lo)
     return total
