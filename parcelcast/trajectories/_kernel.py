@@ -11,8 +11,11 @@ its time in 48 separate ``take`` gathers per wind evaluation and in temporaries;
 parcel reads its 2 x 2 x 2 corners per field and time once, straight from the arrays, and
 a time slice whose weight is 0 is not read at all.
 
-Single-threaded on purpose (no ``parallel=True``): callers and benchmarks compare one core.
-Import this module lazily (numba is slow to import); see ``interpolate.wind_tendency``.
+Parcels are independent: the kernel works on a range ``lo:hi`` of them and releases the
+GIL, so ``interpolate.wind_tendency`` can share the parcels among threads.  Each parcel's
+arithmetic is the same whatever range or thread it falls in, so the results are identical
+bit for bit with any number of threads (tested).  Import this module lazily (numba is slow
+to import); see ``interpolate.wind_tendency``.
 """
 
 from __future__ import annotations
@@ -71,20 +74,19 @@ def _unit_clip(w):
 
 
 @numba.njit(cache=True, nogil=True)
-def _locate(lat_, lon_, q_p, p, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp, lon_ext,
+def _locate(lo, hi, lat_, lon_, q_p, p, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp, lon_ext,
             periodic, qlev, levels, jj, ii0, ii1, kk, wy_, wx_, wk_, outside, below, above):
-    """Cell, weights and flags of every parcel (as ``interpolate.locate``).
+    """Cell, weights and flags of parcels ``lo`` to ``hi - 1`` (as ``interpolate.locate``).
 
     ``lat_``, ``lon_`` in degrees and ``q_p = -ln(p)`` come from numpy (its vectorised
     ``arctan2`` and ``log`` are many times faster than scalar libm calls).
     """
-    n = lat_.size
     nl = qlev.size
     ny = glat.size
     nx = lon_coord.size
     vertical = use_p and nl > 1
     ihi = nx - 1 if periodic else nx - 2
-    for q_ in range(n):
+    for q_ in range(lo, hi):
         lat = lat_[q_]
         lon = lon_[q_]
         j = _cell(glat, lat_sp, lat, ny - 2)
@@ -126,9 +128,9 @@ def _locate(lat_, lon_, q_p, p, use_p, glat, lat_sp, lon_first, lon_coord, lon_s
 
 
 @numba.njit(cache=True, nogil=True)
-def _sample(u, v, om, slot, member, jj, ii0, ii1, kk, wy_, wx_, wk_,
+def _sample(lo, hi, u, v, om, slot, member, jj, ii0, ii1, kk, wy_, wx_, wk_,
             sinlat, coslat, sinlon, coslon, ckey, cval, out):
-    """Weighted Cartesian wind and omega of one time slice at located parcels.
+    """Weighted Cartesian wind and omega of one time slice at located parcels ``lo:hi``.
 
     As ``interpolate.sample_wind`` / ``sample_scalar``: each corner's value is first
     interpolated between levels k0 and k0 + 1, its east/north wind turned into a vector
@@ -141,12 +143,11 @@ def _sample(u, v, om, slot, member, jj, ii0, ii1, kk, wy_, wx_, wk_,
     Successive stages of a step mostly stay in one cell, and the gathers from the large
     fields are what costs.
     """
-    n = jj.size
     nl = u.shape[1]
     ny = u.shape[2]
     nx = u.shape[3]
     has_omega = om.size > 0
-    for q_ in range(n):
+    for q_ in range(lo, hi):
         m = member[q_]
         k0 = kk[q_]
         j0 = jj[q_]
@@ -201,18 +202,42 @@ def _sample(u, v, om, slot, member, jj, ii0, ii1, kk, wy_, wx_, wk_,
 
 
 @numba.njit(cache=True, nogil=True)
-def wind_tendency(x, lat, lon, q, p, member, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp, lon_ext,
-                  periodic, qlev, levels, sinlat, coslat, sinlon, coslon,
+def _combine(lo, hi, x, sa, sb, wt, radius, vel, dz):
+    """Blend the two slices in time (``interpolate.blend``), then project the wind on the
+    tangent plane (``interpolate.tangent``), for parcels ``lo:hi``."""
+    for q_ in range(lo, hi):
+        if wt <= 0.0:
+            tx, ty, tz, to = sa[q_, 0], sa[q_, 1], sa[q_, 2], sa[q_, 3]
+        elif wt >= 1.0:
+            tx, ty, tz, to = sb[q_, 0], sb[q_, 1], sb[q_, 2], sb[q_, 3]
+        else:
+            tx = sa[q_, 0] + wt * (sb[q_, 0] - sa[q_, 0])
+            ty = sa[q_, 1] + wt * (sb[q_, 1] - sa[q_, 1])
+            tz = sa[q_, 2] + wt * (sb[q_, 2] - sa[q_, 2])
+            to = sa[q_, 3] + wt * (sb[q_, 3] - sa[q_, 3])
+        x0 = x[q_, 0]
+        x1 = x[q_, 1]
+        x2 = x[q_, 2]
+        radial = x0 * tx + x1 * ty + x2 * tz
+        vel[q_, 0] = (tx - radial * x0) / radius
+        vel[q_, 1] = (ty - radial * x1) / radius
+        vel[q_, 2] = (tz - radial * x2) / radius
+        dz[q_] = to
+
+
+@numba.njit(cache=True, nogil=True)
+def wind_tendency(lo, hi, x, lat, lon, q, p, member, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp,
+                  lon_ext, periodic, qlev, levels, sinlat, coslat, sinlon, coslon,
                   ua, va, oa, ub, vb, ob, wt, radius, ckey, cval,
                   vel, dz, outside, below, above):
-    """Wind tendency of parcels at unit positions ``x`` (n, 3) and pressure ``p`` (n,).
+    """Wind tendency of parcels ``lo:hi`` at unit positions ``x`` (n, 3) and pressure ``p`` (n,).
 
     ``lat``, ``lon`` (degrees, ``sphere.to_lat_lon(x)``) and ``q = -ln(p)`` are given.
 
     Fills ``vel`` (n, 3): time-blended Cartesian wind projected on the tangent plane,
     divided by ``radius`` (s-1); ``dz`` (n,): time-blended omega (Pa s-1; 0 when ``oa``
     is empty); and the flags ``outside`` (regional grid left), ``below`` / ``above``
-    (pressure beyond the first / last level).
+    (pressure beyond the first / last level).  Only rows ``lo:hi`` are read and written.
 
     Geometry (see ``interpolate._kernel_geometry``): ``glat`` latitudes with pole rows,
     ``lon_first`` the first longitude, ``lon_coord`` the longitudes relative to it that
@@ -235,35 +260,17 @@ def wind_tendency(x, lat, lon, q, p, member, use_p, glat, lat_sp, lon_first, lon
     wy = np.empty(n)
     wx = np.empty(n)
     wk = np.empty(n)
-    _locate(lat, lon, q, p, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp, lon_ext, periodic,
-            qlev, levels, jj, ii0, ii1, kk, wy, wx, wk, outside, below, above)
-    sa = np.zeros((n, 4))
-    sb = np.zeros((n, 4))
+    sa = np.empty((n, 4))  # a slice is read below only where it was sampled (its weight > 0)
+    sb = np.empty((n, 4))
+    _locate(lo, hi, lat, lon, q, p, use_p, glat, lat_sp, lon_first, lon_coord, lon_sp, lon_ext,
+            periodic, qlev, levels, jj, ii0, ii1, kk, wy, wx, wk, outside, below, above)
     if wt < 1.0:
-        _sample(ua, va, oa, 0, member, jj, ii0, ii1, kk, wy, wx, wk,
+        _sample(lo, hi, ua, va, oa, 0, member, jj, ii0, ii1, kk, wy, wx, wk,
                 sinlat, coslat, sinlon, coslon, ckey, cval, sa)
     if wt > 0.0:
-        _sample(ub, vb, ob, 1, member, jj, ii0, ii1, kk, wy, wx, wk,
+        _sample(lo, hi, ub, vb, ob, 1, member, jj, ii0, ii1, kk, wy, wx, wk,
                 sinlat, coslat, sinlon, coslon, ckey, cval, sb)
-    for q_ in range(n):
-        # time (interpolate.blend), then the tangent plane (interpolate.tangent)
-        if wt <= 0.0:
-            tx, ty, tz, to = sa[q_, 0], sa[q_, 1], sa[q_, 2], sa[q_, 3]
-        elif wt >= 1.0:
-            tx, ty, tz, to = sb[q_, 0], sb[q_, 1], sb[q_, 2], sb[q_, 3]
-        else:
-            tx = sa[q_, 0] + wt * (sb[q_, 0] - sa[q_, 0])
-            ty = sa[q_, 1] + wt * (sb[q_, 1] - sa[q_, 1])
-            tz = sa[q_, 2] + wt * (sb[q_, 2] - sa[q_, 2])
-            to = sa[q_, 3] + wt * (sb[q_, 3] - sa[q_, 3])
-        x0 = x[q_, 0]
-        x1 = x[q_, 1]
-        x2 = x[q_, 2]
-        radial = x0 * tx + x1 * ty + x2 * tz
-        vel[q_, 0] = (tx - radial * x0) / radius
-        vel[q_, 1] = (ty - radial * x1) / radius
-        vel[q_, 2] = (tz - radial * x2) / radius
-        dz[q_] = to
+    _combine(lo, hi, x, sa, sb, wt, radius, vel, dz)
 
 
 def warm_up() -> None:
@@ -274,7 +281,7 @@ def warm_up() -> None:
     f = np.zeros((1, 2, 3, 3))
     lev = np.array([1e5, 5e4])
     flag = np.empty(1, dtype=np.bool_)
-    wind_tendency(x, np.zeros(1), np.zeros(1), -np.log(np.array([7e4])), np.array([7e4]),
+    wind_tendency(0, 1, x, np.zeros(1), np.zeros(1), -np.log(np.array([7e4])), np.array([7e4]),
                   np.zeros(1, dtype=np.intp), True, g, 90.0, 0.0, lon,
                   120.0, np.append(lon, 360.0), True, -np.log(lev), lev, g, g, lon, lon,
                   f, f, f, f, f, f, 0.5, 1.0, np.full((2, 1), -1, dtype=np.int64),

@@ -492,7 +492,8 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     ``tangent(x, blend(sample_wind(loc, a...), sample_wind(loc, b...), wt)) / radius`` and
     ``blend(sample_scalar(loc, a["omega"]), sample_scalar(loc, b["omega"]), wt)``; the slice
     whose weight is 0 is not read.  The kernel is ``_kernel.wind_tendency`` (numba,
-    imported here on first use).
+    imported here on first use); many parcels are shared among numba's number of threads
+    (``_threads.share_parcels``), with results identical to one thread.
 
     Parameters
     ----------
@@ -522,6 +523,7 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
         As the attributes of :class:`Location`.
     """
     from parcelcast.trajectories._kernel import wind_tendency as kernel
+    from parcelcast.trajectories._threads import share_parcels
 
     radius = geom.radius if radius is None else radius
 
@@ -529,7 +531,6 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     n = x.shape[0]
     use_p = pressure is not None and geom.nlev > 1
     p = np.ascontiguousarray(pressure, dtype=np.float64) if use_p else np.ones(n)
-    lat, lon = to_lat_lon(x)
     mem = np.ascontiguousarray(member, dtype=np.intp)
     if cache is None:
         cache = CornerCache().use(n, None)
@@ -549,6 +550,15 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     outside = np.empty(n, dtype=bool)
     below = np.empty(n, dtype=bool)
     above = np.empty(n, dtype=bool)
-    kernel(x, lat, lon, -np.log(p), p, mem, use_p, *_kernel_geometry(geom), *f, float(wt), float(radius),
-           cache.key, cache.val, vel, dz, outside, below, above)
+    lat, lon, q = np.empty(n), np.empty(n), np.empty(n)
+    args = (x, lat, lon, q, p, mem, use_p, *_kernel_geometry(geom), *f, float(wt),
+            float(radius), cache.key, cache.val, vel, dz, outside, below, above)
+
+    def work(lo, hi):  # one thread's parcels; numpy's ufuncs release the GIL too
+        lat[lo:hi], lon[lo:hi] = to_lat_lon(x[lo:hi])
+        np.log(p[lo:hi], out=q[lo:hi])
+        np.negative(q[lo:hi], out=q[lo:hi])
+        kernel(lo, hi, *args)
+
+    share_parcels(n, work)
     return vel, dz, outside, below, above
