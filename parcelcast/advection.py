@@ -137,8 +137,9 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
     ds : xarray.Dataset
         Canonical analysis (needs ``temperature`` and ``u``/``v`` for ``wind="actual"``,
         ``temperature`` and ``geopotential`` for ``wind="geostrophic"``).
-    level_hpa : float
-        Pressure level in hPa.
+    level_hpa : float or "surface"
+        Pressure level in hPa, or ``"surface"``: the 2-m temperature advected by the
+        10-m wind (``selection.select_level``; actual wind only).
     time : numpy.datetime64, optional
         Valid time (UTC); default the latest analysis time.
     wind : {"actual", "geostrophic"}
@@ -152,10 +153,13 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
     import xarray as xr
 
     from parcelcast.io.analysis import require
-    from parcelcast.selection import select_level, select_time
+    from parcelcast.selection import check_surface_wind, is_surface, select_level, select_time
 
     if wind not in ("actual", "geostrophic"):
         raise ValueError(f"wind must be 'actual' or 'geostrophic', not {wind!r}")
+    if is_surface(level_hpa):
+        check_surface_wind(wind)
+        ds = select_level(ds, level_hpa)  # 2-m temperature, 10-m wind as temperature, u, v
     needed = ("temperature", "u", "v") if wind == "actual" else ("temperature", "geopotential")
     require(ds, *needed, purpose=f"temperature advection with the {wind} wind")
     ground_fields = [n for n in ("surface_pressure", "orography", "geopotential")

@@ -18,12 +18,17 @@ import numpy as np
 
 from parcelcast.budget.windows import (bounding_times, check_window, interpolate_in_time,
                                        interpolation_weights, simpson_nodes, weighted)
+from parcelcast.selection import level_label
 
 
 WINDS = ("actual", "geostrophic")
 #: what the residual holds: never "diabatic" alone
 RESIDUAL_NOTE = "diabatic heating plus errors"
 RESIDUAL_NOTE_NO_OMEGA = ", plus the vertical-motion term (not computed: no omega)"
+#: what the residual holds at the surface level (2-m temperature), said plainly
+SURFACE_RESIDUAL = ("at the surface the residual holds the diurnal cycle (sunshine by day, "
+                    "night-time cooling) as well as everything else: cloud, evaporation, "
+                    "surface fluxes, mixing with the air above, and errors")
 TIME_INTEGRATION = ("fields interpolated linearly in time between analyses; Simpson's rule on "
                     "each piece of the window between analysis times (exact for the products)")
 
@@ -34,6 +39,17 @@ def check_wind(wind: str) -> None:
 
     if wind not in WINDS:
         raise ParcelcastError(f"wind {wind!r} is not known; choose one of: {', '.join(WINDS)}")
+
+
+def at_surface(ds, level, wind):
+    """At the surface level (``"surface"``) the 2-m temperature and 10-m wind as
+    ``temperature``, ``u``, ``v`` (``selection.select_level``); else ``ds`` unchanged."""
+    from parcelcast.selection import check_surface_wind, is_surface, select_level
+
+    if not is_surface(level):
+        return ds
+    check_surface_wind(wind)
+    return select_level(ds, level)
 
 
 def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
@@ -58,6 +74,7 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
 
     check_wind(wind)
     check_window(ds, start, end)
+    ds = at_surface(ds, level_hpa, wind)  # level_hpa "surface": 2-m temperature, 10-m wind
     require(ds, "temperature", purpose="the trend split")
     ds = bounding_times(ds, start, end)  # compute only what the window uses
     temperature = select_level(ds, level_hpa)["temperature"]
@@ -96,6 +113,7 @@ def split_fields(ds, level_hpa: float, start, end, wind: str = "actual"):
     for name in out.data_vars:
         out[name].attrs = {"units": "K", "long_name": descriptions[name]}
     out.attrs = {**out.attrs, "start": str(start)[:19], "end": str(end)[:19], "level_hPa": level_hpa,
+                 "level": level_label(level_hpa),
                  "wind": wind, "time_integration": TIME_INTEGRATION,
                  "source_files": ds.attrs.get("source_files", "")}
     return out
@@ -136,12 +154,13 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     import xarray as xr
 
     from parcelcast.sampling import value_at
+    from parcelcast.selection import is_surface
 
     fields = split_fields(ds, level_hpa, start, end, wind)
     at, area = _at_station(fields, lat, lon, radius_km)
     parts = {name: at[name] for name in at.data_vars}
     result = {"observed_source": "analysis",
-              "residual_note": RESIDUAL_NOTE
+              "residual_note": SURFACE_RESIDUAL if is_surface(level_hpa) else RESIDUAL_NOTE
               + ("" if "vertical" in parts else RESIDUAL_NOTE_NO_OMEGA)}
     point = value_at(fields[["observed_change", "advective"]], lat, lon)
     result.update(_values("point_observed_change_K", point["observed_change"]))
@@ -151,7 +170,7 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         result["observed_source"] = f"station series {station.source}"
         result["station_gaps"] = station.gap_text()
         result["residual_note"] += (", plus the difference between the station series and the "
-                                    f"{level_hpa:g} hPa analysis")
+                                    f"{level_label(level_hpa)} analysis")
         parts["observed_change"] = xr.full_like(parts["advective"], observed)
         others = parts["advective"] + (parts["vertical"] if "vertical" in parts else 0.0)
         parts["residual"] = parts["observed_change"] - others

@@ -39,11 +39,16 @@ def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         ``trajectories`` used, ``reached_start``, their statuses, the origin of the first
         member's unperturbed trajectory and the ``paths``.
     """
+    from parcelcast.budget.eulerian import at_surface
+    from parcelcast.selection import is_surface
     from parcelcast.trajectories import compute_trajectories
     from parcelcast.units import Q_
 
     hours = (np.datetime64(end, "ns") - np.datetime64(start, "ns")) / np.timedelta64(1, "h")
-    paths = compute_trajectories(ds, lat, lon, Q_(level_hpa, "hPa"), Q_(-float(hours), "h"),
+    ds, pressure = at_surface(ds, level_hpa, wind), level_hpa
+    if is_surface(level_hpa):  # the surface: one level, the 10-m wind; the pressure of a
+        pressure = 1000.0      # single-level field is not used (it only labels the path)
+    paths = compute_trajectories(ds, lat, lon, Q_(pressure, "hPa"), Q_(-float(hours), "h"),
                                  start_time=np.datetime64(end, "ns"), mode="isobaric",
                                  scheme=scheme, wind=wind, members=members)
     last = paths["row_size"].values - 1

@@ -22,6 +22,17 @@ def lat_lon(text: str) -> tuple[float, float]:
     return lat, lon
 
 
+def pressure_level_or_surface(text: str):
+    """Parse ``--level``: a pressure in hPa (float) or ``surface`` (2-m temperature, 10-m wind)."""
+    if text.strip().lower() == "surface":
+        return "surface"
+    try:
+        return float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(
+            f"expected a pressure level in hPa such as 850, or 'surface'; got {text!r}") from None
+
+
 def utc_time(text: str):
     """Parse an ISO 8601 time for argparse; a time without a zone is UTC (naive UTC datetime64)."""
     from parcelcast.errors import ParcelcastError

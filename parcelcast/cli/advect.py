@@ -1,4 +1,4 @@
-"""``parcelcast advect``: temperature advection on a pressure level (map, point, NetCDF)."""
+"""``parcelcast advect``: temperature advection on a pressure level or at the surface (map, point, NetCDF)."""
 
 from __future__ import annotations
 
@@ -10,6 +10,7 @@ from parcelcast.cli._common import (
     iso_utc,
     json_number,
     lat_lon,
+    pressure_level_or_surface,
     print_json,
     utc_time,
 )
@@ -17,8 +18,10 @@ from parcelcast.cli._common import (
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_input_arguments(parser)
-    parser.add_argument("--level", type=float, required=True, metavar="HPA",
-                        help="pressure level in hPa, e.g. 850")
+    parser.add_argument("--level", type=pressure_level_or_surface, required=True,
+                        metavar="HPA|surface",
+                        help="pressure level in hPa, e.g. 850, or 'surface': the 2-m temperature "
+                        "advected by the 10-m wind")
     parser.add_argument("--time", type=utc_time, metavar="ISO",
                         help="valid time (UTC unless a zone is given); default: the latest")
     parser.add_argument("--at", type=lat_lon, metavar="LAT,LON",
@@ -36,11 +39,15 @@ def run(args) -> int:
     from parcelcast.selection import member_mean
     from parcelcast.cli import DISCLAIMER
     from parcelcast.io.analysis import open_analysis
+    from parcelcast.selection import check_surface_wind, is_surface, roles_at_level
 
+    if is_surface(args.level):
+        check_surface_wind(args.wind)  # before any file is read
     roles = ("temperature", "u", "v") if args.wind == "actual" else ("temperature", "geopotential")
     roles += ("surface_pressure", "orography")  # to mask levels below the ground
-    ds = open_analysis(args.files, dict(args.var), roles=roles)
+    ds = open_analysis(args.files, dict(args.var), roles=roles_at_level(roles, args.level))
     fields = advection_on_level(ds, args.level, args.time, args.wind)
+    fields.attrs["level"] = args.level
     if args.at is not None:
         summary = point_summary(fields, *args.at)
     else:
@@ -62,9 +69,15 @@ def run(args) -> int:
 def _base(fields) -> dict:
     import json
 
+    from parcelcast.selection import level_json
+
+    if "level" in fields.coords:
+        level = level_json(json_number(float(fields["level"].values) / 100.0, 3))
+    else:
+        level = level_json(fields.attrs.get("level"))
     return {
         "time": iso_utc(fields["time"].values),
-        "level_hPa": json_number(float(fields["level"].values) / 100.0, 3),
+        **level,
         "wind": fields.attrs["wind"],
         "source": fields.attrs.get("source_files", ""),
         "below_ground_check": fields.attrs.get("below_ground_check", ""),
@@ -154,7 +167,10 @@ def write_fields(fields, path) -> None:
 
 
 def print_text(summary: dict) -> None:
-    lines = [f"Temperature advection at {summary['level_hPa']:g} hPa, {summary['wind']} wind, "
+    from parcelcast.selection import level_label
+
+    level = summary["level_hPa"] if summary["level_hPa"] is not None else summary["level"]
+    lines = [f"Temperature advection at {level_label(level)}, {summary['wind']} wind, "
              f"valid {summary['time']}"]
     if "lat" in summary:
         lines += [

@@ -4,14 +4,15 @@ from __future__ import annotations
 
 import argparse
 
-from parcelcast.cli._common import (add_input_arguments, iso_utc, json_number, jsonable, lat_lon, print_json,
-                                    utc_time)
+from parcelcast.cli._common import (add_input_arguments, iso_utc, json_number, jsonable, lat_lon,
+                                    pressure_level_or_surface, print_json, utc_time)
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_input_arguments(parser)
     parser.add_argument("--at", type=lat_lon, required=True, metavar="LAT,LON", help="the station")
-    parser.add_argument("--level", type=float, required=True, metavar="HPA", help="pressure level (hPa)")
+    parser.add_argument("--level", type=pressure_level_or_surface, required=True, metavar="HPA|surface",
+                        help="pressure level (hPa), or 'surface': 2-m temperature and 10-m wind")
     parser.add_argument("--start", type=utc_time, required=True, metavar="ISO",
                         help="start of the window (UTC unless a zone is given)")
     parser.add_argument("--end", type=utc_time, required=True, metavar="ISO", help="end of the window")
@@ -32,19 +33,33 @@ def run(args) -> int:
     from parcelcast.budget import trend_split
     from parcelcast.cli import DISCLAIMER
     from parcelcast.io.analysis import open_analysis
+    from parcelcast.selection import check_surface_wind, is_surface, roles_at_level
 
+    surface = is_surface(args.level)
+    if surface:
+        check_surface_wind(args.wind)
+        if args.guidance:
+            from parcelcast.errors import ParcelcastError
+
+            raise ParcelcastError("--guidance is for pressure levels; it is not offered at the "
+                                  "surface level")
     roles = ["temperature", "omega"] + (["u", "v"] if args.wind == "actual" else ["geopotential"])
     roles += ["surface_pressure", "orography"]  # levels below the ground: parcelcast.ground
     if args.guidance:  # the column for the top-temperature guidance
         roles += ["geopotential", "relative_humidity", "specific_humidity", "surface_pressure"]
-    ds = open_analysis(args.files, dict(args.var), roles=sorted(set(roles)))
+    ds = open_analysis(args.files, dict(args.var), roles=roles_at_level(sorted(set(roles)), args.level))
     station = None
     if args.obs:
         from parcelcast.io.station import read_station_series
 
         station = read_station_series(args.obs)
-    result = trend_split(ds, *args.at, args.level, args.start, args.end, args.wind,
-                         args.radius_km, station, args.members)
+    if surface and "near_surface_u" not in ds.data_vars:  # 2-m temperature only: say what is missing
+        from parcelcast.near_surface import observed_only_split
+
+        result = observed_only_split(ds, *args.at, args.start, args.end, station)
+    else:
+        result = trend_split(ds, *args.at, args.level, args.start, args.end, args.wind,
+                             args.radius_km, station, args.members)
     summary = to_json(result, args)
     if args.guidance:
         from parcelcast.budget import station_guidance
@@ -59,6 +74,9 @@ def run(args) -> int:
 
 
 def to_json(result: dict, args) -> dict:
+    from parcelcast.budget.eulerian import SURFACE_RESIDUAL
+    from parcelcast.selection import is_surface, level_json
+
     euler, lagr = result["eulerian"], result["lagrangian"]
     # Rounded for JSON so that the printed parts add up exactly to the printed change.
     observed = json_number(euler["observed_change_K"], 4)
@@ -72,7 +90,7 @@ def to_json(result: dict, args) -> dict:
         "end": iso_utc(args.end),
         "lat": args.at[0],
         "lon": args.at[1],
-        "level_hPa": args.level,
+        **level_json(args.level),
         "wind": args.wind,
         "observed_change_K": observed,
         "advective_K": advective,
@@ -81,7 +99,7 @@ def to_json(result: dict, args) -> dict:
         "residual_holds": euler["residual_note"],
         "observed_source": euler["observed_source"],
         "missing_reason": euler.get("missing_reason"),
-        "lagrangian": {
+        "lagrangian": None if lagr is None else {
             "followed": "the unperturbed trajectory of each analysis member; its spread "
                         "covers the cloud of starts and all members",
             "footing": lagr["footing"],
@@ -100,18 +118,24 @@ def to_json(result: dict, args) -> dict:
             "advective = time integral of -V.grad T of the fields interpolated linearly in time between "
             "analyses (Simpson's rule on each piece between analysis times)",
             "vertical = time integral of omega * static stability"
-            + ("" if euler["vertical_available"] else ": not available (no omega in the input)"),
+            + ("" if euler["vertical_available"] else ": not at the surface level (no omega term "
+               "for 2-m temperature)" if is_surface(args.level) else ": not available (no omega in "
+               "the input)"),
             f"residual = observed - advective - vertical: {euler['residual_note']}",
+        ] + ([] if lagr is None else [
             "lagrangian: the analysed change at the point, split following the unperturbed "
             "trajectory of each analysis member (member mean)",
             "advective_difference_K = consistency.eulerian_minus_lagrangian_K",
-        ],
+        ]) + ([f"surface level: 2-m temperature advected by the 10-m wind; {SURFACE_RESIDUAL}"]
+              if is_surface(args.level) else []),
     }
+    if "not_computed" in euler:
+        out["not_computed"] = euler["not_computed"]
     for key in ("observed_change_members_K", "advective_members_K", "residual_members_K"):
         if key in euler:
             out[key] = [json_number(x, 4) for x in euler[key]]
     for key in ("non_advective_members_K", "advective_members_K"):
-        if key in lagr:
+        if lagr is not None and key in lagr:
             out["lagrangian"][key] = [json_number(x, 4) for x in lagr[key]]
     if "station_gaps" in euler:
         out["station_gaps"] = euler["station_gaps"]
@@ -132,18 +156,25 @@ def print_text(s: dict) -> None:
     def f(x):
         return "n/a" if x is None else f"{x:+.2f} K"
 
+    from parcelcast.selection import level_label
+
+    level = s["level_hPa"] if s["level_hPa"] is not None else s["level"]
+    lagr = s["lagrangian"] or {"footing": "not computed", "non_advective_K": None,
+                               "advective_K": None, "spread_K": None}
     lines = [
-        f"Trend split at {s['lat']:.2f},{s['lon']:.2f}, {s['level_hPa']:g} hPa, {s['start']} to {s['end']}",
+        f"Trend split at {s['lat']:.2f},{s['lon']:.2f}, {level_label(level)}, {s['start']} to {s['end']}",
         f"  observed change        {f(s['observed_change_K'])}   ({s['observed_source']})",
         f"  advective (Eulerian)   {f(s['advective_K'])}",
         f"  vertical motion        {f(s['vertical_K'])}",
         f"  residual               {f(s['residual_K'])}   ({s['residual_holds']})",
-        f"  Lagrangian ({s['lagrangian']['footing']}): non-advective "
-        f"{f(s['lagrangian']['non_advective_K'])}, advective "
-        f"{f(s['lagrangian']['advective_K'])}, spread {f(s['lagrangian']['spread_K'])}",
-    ] + consistency_lines(s["consistency"])
+        f"  Lagrangian ({lagr['footing']}): non-advective "
+        f"{f(lagr['non_advective_K'])}, advective "
+        f"{f(lagr['advective_K'])}, spread {f(lagr['spread_K'])}",
+    ] + (consistency_lines(s["consistency"]) if s["consistency"] else [])
     if s.get("missing_reason"):
         lines.insert(1, f"  missing: {s['missing_reason']}")
+    lines += [f"  {part}: {why}" for part, why in s.get("not_computed", {}).items()]
+    lines += [f"  note: {note}" for note in s["notes"] if note.startswith("surface level")]
     for item in s.get("guidance", [])[1:]:
         if "lead_h" in item:
             up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"

@@ -28,7 +28,7 @@ from parcelcast.errors import (
 )
 from parcelcast.grid import earth as earth_radius
 from parcelcast.io import coords as coordinates
-from parcelcast.io.roles import PLAUSIBLE_RANGE, ROLES, Role
+from parcelcast.io.roles import HEIGHT_TOLERANCE_M, PLAUSIBLE_RANGE, ROLES, Role
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
 
 def expand_paths(paths) -> list[Path]:
@@ -240,7 +240,7 @@ def _find_role(role: Role, parts: list[xr.Dataset], overrides, path: Path):
                 return part[name]
         return None
     matchers = (
-        lambda n, v: v.attrs.get("standard_name") in role.standard_names,
+        lambda n, v: v.attrs.get("standard_name") in role.standard_names and _height_fits(v, role),
         lambda n, v: v.attrs.get("GRIB_shortName") in role.grib_short_names,
         lambda n, v: n.lower() in role.common_names,
     )
@@ -264,6 +264,28 @@ def _find_role(role: Role, parts: list[xr.Dataset], overrides, path: Path):
         raise UnitsError(role.name, units, " or ".join(
             f"{k} ({QUANTITY_KINDS[k][1]})" for k in kinds), f"{path} variable '{misfit.name}'")
     return None
+
+
+def height_above_ground(var: xr.DataArray) -> float | None:
+    """Height (m) stated by a near-surface field's height coordinate (CF ``height`` or
+    cfgrib's ``heightAboveGround``; one value), else None."""
+    # a NetCDF variable names its own scalar coordinates (CF ``coordinates`` attribute, which
+    # xarray keeps in the encoding); the dataset's others (a 10-m height beside a 2-m one) are not its
+    own = var.encoding.get("coordinates", "").split() or list(var.coords)
+    for name in coordinates.height_coordinates(var):
+        if name in own:
+            coord = var[name]
+            units = coord.attrs.get("units") or "m"
+            return float(convert(coord.values.reshape(-1)[:1], units, "height", "height coordinate")[0])
+    return None
+
+
+def _height_fits(var: xr.DataArray, role: Role) -> bool:
+    """A near-surface role matched by standard name needs its height (roles.py); others pass."""
+    if role.height_m is None:
+        return True
+    height = height_above_ground(var)
+    return height is not None and abs(height - role.height_m) <= HEIGHT_TOLERANCE_M
 
 
 #: names that several roles share (GRIB "w" is omega in Pa/s, elsewhere w in m/s): for these
@@ -315,6 +337,9 @@ def _to_canonical(var: xr.DataArray, role: Role, path: Path) -> xr.DataArray:
         "long_name": role.long_name,
         "source": source + (f" ({units})" if units else ""),
     }
+    heights = coordinates.height_coordinates(out)
+    if heights:  # the height lives in the role's name and long_name
+        out = out.squeeze([d for d in heights if d in out.dims]).drop_vars(heights)
     out.encoding = {}
     out.name = role.name
     return out

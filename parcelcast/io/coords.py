@@ -37,6 +37,15 @@ def _find_coord(ds: xr.Dataset, role: str) -> str | None:
     return None
 
 
+def height_coordinates(obj) -> list[str]:
+    """Names of the one-valued height-above-ground coordinates of a dataset or variable
+    (CF standard name ``height``, or a name such as cfgrib's ``heightAboveGround``)."""
+    standard_names, names, _ = COORDINATES["height"]
+    return [str(name) for name, coord in obj.coords.items()
+            if coord.size == 1 and (coord.attrs.get("standard_name") in standard_names
+                                    or str(name).lower() in names)]
+
+
 def standardise(raw: xr.Dataset, path: Path, crs=None) -> xr.Dataset:
     """Rename and convert the coordinates of one raw dataset (no data values touched).
 
@@ -62,6 +71,7 @@ def standardise(raw: xr.Dataset, path: Path, crs=None) -> xr.Dataset:
     ds = _standardise_time(ds, path)
     ds = _standardise_member(ds)
     keep = set(_CANONICAL_ORDER) | {"x", "y", "crs"}
+    keep.update(height_coordinates(ds))  # 2 m, 10 m: recognise near-surface fields (roles.py)
     extra = [c for c in ds.coords if c not in keep and c not in ds.dims]
     return ds.drop_vars(extra)
 

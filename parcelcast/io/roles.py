@@ -4,6 +4,13 @@ A role is found by, in order: a user override (``--var ROLE=NAME``), the CF
 ``standard_name``, the GRIB ``shortName`` (``GRIB_shortName`` attribute of
 cfgrib) and common variable names.  Units then decide between candidates that
 share a name (GRIB ``w`` is omega in Pa/s; a ``w`` in m/s is a vertical velocity).
+
+Near-surface roles (2-m temperature, 10-m wind) state their height: a match by CF
+standard name counts only with a height coordinate of that value (CF ``height``,
+or cfgrib's ``heightAboveGround``), since ``air_temperature`` or ``eastward_wind``
+alone could be any level; their GRIB short names (``2t``, ``10u``, ``10v``) and
+common names (``t2m``, ``u10``, ``v10``) say the height themselves.
+:data:`NEAR_SURFACE` maps the pressure-level roles onto them (``--level surface``).
 """
 
 from __future__ import annotations
@@ -25,6 +32,7 @@ class Role:
     long_name: str
     on_levels: bool  # True: a pressure-level field; False: a single-level (surface) field
     also_kinds: tuple[str, ...] = ()  # other acceptable unit kinds (converted, see analysis.py)
+    height_m: float | None = None  # near-surface roles: height above ground (m) of the field
 
 
 ROLES: dict[str, Role] = {
@@ -63,11 +71,30 @@ ROLES: dict[str, Role] = {
              ("orog", "orography", "zs", "phis", "surface_geopotential", "surface_altitude"),
              "geopotential", "m2 s-2", "surface_geopotential",
              "geopotential of the ground (orography)", False, also_kinds=("height",)),
-        Role("near_surface_temperature", (), ("2t", "t2m"),
+        Role("near_surface_temperature", ("air_temperature",), ("2t", "t2m"),
              ("t2m", "2t", "tas", "t2", "temperature_2m"),
-             "temperature", "K", "air_temperature", "air temperature at 2 m", False),
+             "temperature", "K", "air_temperature", "air temperature at 2 m", False,
+             height_m=2.0),
+        Role("near_surface_u", ("eastward_wind",), ("10u",),
+             ("u10", "10u", "uas", "u10m", "u_10m"),
+             "speed", "m s-1", "eastward_wind", "eastward wind at 10 m", False, height_m=10.0),
+        Role("near_surface_v", ("northward_wind",), ("10v",),
+             ("v10", "10v", "vas", "v10m", "v_10m"),
+             "speed", "m s-1", "northward_wind", "northward wind at 10 m", False, height_m=10.0),
     )
 }
+
+#: ``--level surface``: the near-surface role that stands for each pressure-level role
+#: (2-m temperature carried by the 10-m wind; WMO practice for screen temperature and
+#: surface wind)
+NEAR_SURFACE: dict[str, str] = {
+    "temperature": "near_surface_temperature",
+    "u": "near_surface_u",
+    "v": "near_surface_v",
+}
+
+#: a near-surface field's stated height must be within this of the role's height (m)
+HEIGHT_TOLERANCE_M = 0.5
 
 #: Coordinate recognition: role -> (standard_names, names, axis)
 COORDINATES: dict[str, tuple[tuple[str, ...], tuple[str, ...], str]] = {
@@ -77,6 +104,8 @@ COORDINATES: dict[str, tuple[tuple[str, ...], tuple[str, ...], str]] = {
               ("isobaricinhpa", "isobaricinpa", "level", "plev", "pressure", "lev", "pressure_level",
                "isobaric", "pres"), "Z"),
     "member": (("realization",), ("number", "member", "realization", "ensemble_member", "ens"), ""),
+    # height above the ground of a near-surface field (kept only to recognise the field)
+    "height": (("height",), ("height", "heightaboveground", "height_above_ground"), ""),
 }
 
 #: plausible range of each role's canonical SI values (checked on the first time step).
@@ -85,6 +114,8 @@ COORDINATES: dict[str, tuple[tuple[str, ...], tuple[str, ...], str]] = {
 PLAUSIBLE_RANGE = {
     "temperature": (150.0, 350.0),
     "near_surface_temperature": (180.0, 345.0),
+    "near_surface_u": (-100.0, 100.0),
+    "near_surface_v": (-100.0, 100.0),
     "u": (-150.0, 150.0),
     "v": (-150.0, 150.0),
     "omega": (-30.0, 30.0),
