@@ -7,7 +7,8 @@ RK4), all parcels at once, on one thread and on all of numba's threads (the parc
 shared among threads; the paths are identical bit for bit, checked here too); the one-time
 numba start-up is measured separately and printed.  Each run includes loading and preparing
 the 17 time slices.  Best of ``--repeats`` runs (the machine may be shared: the load
-average is printed before and after).  Throughput in parcel-steps per second (parcels x
+average is printed before and after, and the CPU time of each run: on a busy machine a
+1-thread run's CPU time is close to what it takes on a quiet one).  Throughput in parcel-steps per second (parcels x
 time steps; each step evaluates the wind 4 times in both schemes).  Then the cost against
 the number of parcels (time per parcel-step, close to constant = linear).
 Baseline: ``scipy.interpolate.RegularGridInterpolator`` on (time, level, lat, lon) for u,
@@ -82,14 +83,16 @@ def main(n=10_000, n_base=20):
     def run(scheme, count, threads):
         numba.set_num_threads(threads)
         src = FieldSource(geom, times, loader)
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), time.process_time()
         res = integrate(src, plat[:count], plon[:count], pp[:count], 0.0, 48 * 3600.0, mode="3d",
                         scheme=scheme, output_interval=3 * 3600.0)
-        return time.perf_counter() - t0, res
+        return time.perf_counter() - t0, res, time.process_time() - c0
 
     def best(scheme, count, threads):
+        """(best wall time, a result, CPU time of that run: all threads together)."""
         runs = [run(scheme, count, threads) for _ in range(args.repeats)]
-        return min(r[0] for r in runs), runs[0][1]
+        el, _, cpu = min(runs, key=lambda r: r[0])
+        return el, runs[0][1], cpu
 
     # one-time start-up, not timed below: numba import and compilation of the wind kernel
     # (or loading it from numba's on-disk cache), on the same argument types as the runs
@@ -140,12 +143,13 @@ def main(n=10_000, n_base=20):
           f"{t_base:.1f} s (setup {t_setup:.2f} s)")
     from parcelcast.trajectories.sphere import great_circle_distance
 
-    for (scheme, threads), (el, res) in results.items():
+    for (scheme, threads), (el, res, cpu) in results.items():
         d = great_circle_distance(res.lat[:n_base, -1], res.lon[:n_base, -1],
                                   base_end[:, 0], base_end[:, 1])
         steps = n * res.n_steps
         print(f"parcelcast {scheme:10s} {threads} thread{'s' if threads > 1 else ' '}: {el:.2f} s "
-              f"for {n} parcels x 48 h (goal < 1 s), {res.n_steps} steps of <= {res.dt:.0f} s, "
+              f"for {n} parcels x 48 h (goal < 1 s; CPU {cpu:.2f} s), {res.n_steps} steps of "
+              f"<= {res.dt:.0f} s, "
               f"{steps / el / 1e6:.2f} M parcel-steps/s; speed-up x{t_base / el:.0f} over the "
               f"baseline; end points vs baseline: median {np.median(d) / 1e3:.2f} km, max "
               f"{d.max() / 1e3:.2f} km; status ok {np.mean(res.status == 0):.3f}")
@@ -160,7 +164,7 @@ def main(n=10_000, n_base=20):
         print(f"cost against the number of parcels (petterssen, {all_threads} threads, best of "
               f"{args.repeats}; constant us per parcel-step = linear):")
         for count in (1_000, 3_000, 10_000, 30_000):
-            el, res = best("petterssen", count, all_threads)
+            el, res, _ = best("petterssen", count, all_threads)
             print(f"  {count:6d} parcels  {el:6.2f} s  {el / (count * res.n_steps) * 1e6:6.3f} us "
                   f"per parcel-step")
     print(f"after: {_load_text()}")
