@@ -194,3 +194,14 @@ def test_surface_split_with_wind_adds_up_and_names_the_diurnal_cycle(tmp_path, c
     assert got["lagrangian"]["advective_K"] == pytest.approx(V10 * B * window, abs=2e-3)
     assert any("diurnal cycle" in note and "sunshine" in note for note in got["notes"])
     assert got["level"] == "surface" and got["level_hPa"] is None
+
+
+def test_surface_fields_written_to_netcdf_say_their_level(tmp_path, capsys):
+    path = _cf_surface_file(tmp_path / "surface.nc")
+    out = tmp_path / "adv.nc"
+    run_json(capsys, "advect", path, "--level", "surface", "--out", out)
+    written = xr.open_dataset(out)
+    assert written.attrs["level"] == "surface" and "level" not in written.coords
+    assert written["temperature"].attrs["long_name"] == "air temperature at 2 m"
+    # by hand, as above: +V10 B K/s at every interior point
+    np.testing.assert_allclose(written["temperature_advection"].values[1:-1, 1:-1], V10 * B, rtol=1e-9)

@@ -10,6 +10,7 @@ import numpy as np
 
 from parcelcast.constants import SECONDS_PER_HOUR
 from parcelcast.io.atomic import atomic_path
+from parcelcast.selection import level_label
 
 
 def advection_map(level_fields, path=None, station=None, ax=None):
@@ -77,9 +78,10 @@ def advection_map(level_fields, path=None, station=None, ax=None):
     bar.set_label("temperature advection -V\u00b7\u2207T (K/h), positive = warm")
     time = level_fields["time"].values if "time" in level_fields.coords else None
     when = (np.datetime_as_string(time, unit="m").replace("T", " ") + " UTC") if time is not None else ""
-    level = float(level_fields["level"].values) / 100 if "level" in level_fields.coords else None
+    level = (float(level_fields["level"].values) / 100 if "level" in level_fields.coords
+             else level_fields.attrs.get("level", "surface"))  # no pressure level: the surface
     wind = level_fields.attrs.get("wind", "actual")
-    ax.set_title(f"Temperature advection at {level:g} hPa ({wind} wind), valid {when}\n"
+    ax.set_title(f"Temperature advection at {level_label(level)} ({wind} wind), valid {when}\n"
                  "contours: isotherms (\u00b0C); arrows: wind; grey: level below the ground.\n"
                  "Guidance only, not an official forecast.",
                  fontsize=10)
