@@ -105,7 +105,7 @@ def _warnings(c: dict, eulerian: dict, lagrangian: dict, spacing_h) -> list[str]
             "analyses do not resolve the flow: trust neither residual alone")
     if c["consistent"] is None:
         warnings.append("consistency cannot be judged: an advective part is missing")
-    if not eulerian["vertical_available"]:
+    if not eulerian["vertical_available"] and not eulerian.get("at_surface"):  # no omega at 2 m
         warnings.append("no omega in the analysis: the residual holds the vertical-motion term "
                         "as well as diabatic heating and errors")
     if lagrangian["reached_start"] < lagrangian["trajectories"]:

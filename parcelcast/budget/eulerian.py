@@ -181,6 +181,7 @@ def eulerian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         else:
             result[key] = None
     result["vertical_available"] = "vertical" in parts
+    result["at_surface"] = is_surface(level_hpa)
     from parcelcast.ground import point_reason
 
     result["missing_reason"] = point_reason(fields, lat, lon) if radius_km is None else None
