@@ -1,7 +1,8 @@
 """Run every benchmark in one go and write ``benchmarks/RESULTS.md`` with the machine described.
 
-Run: ``python benchmarks/run_all.py [--only advection,trajectories] [--out PATH]`` (a few
-minutes on 2 cores).  Each benchmark runs in its own Python process (a fresh numba and
+Run: ``python benchmarks/run_all.py [--only advection,trajectories] [--quick] [--out PATH]``
+(a few minutes on 2 cores; ``--quick``: fewer repeats and smaller cases, for a check that
+everything runs, not for the figures).  Each benchmark runs in its own Python process (a fresh numba and
 numpy state, as a user meets it) importing the parcelcast of this checkout, and its output
 goes both to the terminal and, verbatim, into the results file.  Every figure in the file
 is a ratio or a rate measured in the same run as its baseline; nothing is compared with
@@ -45,6 +46,10 @@ BENCHMARKS = (
      "advect / profile / track on real files as ratios to the import floor"),
 )
 OPTIONAL = {"climate", "latency"}  # written by other parts of the project; run when present
+#: arguments of each benchmark for ``--quick``
+QUICK = {"advection": ["--repeats", "3"], "trajectories": ["--repeats", "1"],
+         "cape": ["--columns", "1000", "--baseline-columns", "5", "--no-compile-time"],
+         "climate": ["--quick"], "latency": ["--repeat", "1", "--no-cold"]}
 
 #: lines of a benchmark's output repeated in the summary at the top of the results
 HEADLINE_WORDS = ("ratio", "goal", "parcel-steps/s", "speed-up", "per second", "peak")
@@ -107,12 +112,14 @@ def run_benchmark(script: Path, args: list[str]) -> tuple[int, str, float]:
     return status, "".join(output), time.perf_counter() - start
 
 
-def results_markdown(machine, runs, started, finished, load_before, load_after) -> str:
+def results_markdown(machine, runs, started, finished, load_before, load_after, quick=False) -> str:
     """The results file: machine, a summary of the headline lines, then each output verbatim."""
     text = ["# Benchmark results", "",
             f"Written by `python benchmarks/run_all.py` on {started:%Y-%m-%d %H:%M} UTC "
             f"(finished {finished:%H:%M} UTC). Every ratio is measured against a baseline run "
-            "in the same process, on this machine; rerun the command to refresh this file.", "",
+            "in the same process, on this machine; rerun the command to refresh this file."
+            + (" QUICK RUN (--quick: fewer repeats, smaller cases): a check that everything runs, "
+               "not the figures." if quick else ""), "",
             "## Machine", ""]
     text += [f"- {line}" for line in machine]
     text += [f"- Load average before: {load_before}; after: {load_after} (the machine may be "
@@ -139,6 +146,7 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--only", help="comma-separated names: " + ", ".join(b[0] for b in BENCHMARKS))
     ap.add_argument("--out", type=Path, default=HERE / "RESULTS.md", help="results file to write")
+    ap.add_argument("--quick", action="store_true", help="fewer repeats, smaller cases")
     args = ap.parse_args(argv)
     chosen = set(args.only.split(",")) if args.only else {b[0] for b in BENCHMARKS}
     unknown = chosen - {b[0] for b in BENCHMARKS}
@@ -161,6 +169,8 @@ def main(argv=None) -> int:
                 raise SystemExit(f"benchmark {path} is missing")
             runs.append((name, description, f"{script} is not in this checkout", None, 0.0))
             continue
+        if args.quick:
+            extra = QUICK[name]
         print(f"\n=== {name}: python benchmarks/{script} {' '.join(extra)}", flush=True)
         status, output, seconds = run_benchmark(path, extra)
         failed |= status != 0
@@ -170,7 +180,8 @@ def main(argv=None) -> int:
     sys.path.insert(0, str(ROOT))
     from parcelcast.io.atomic import write_text
 
-    write_text(args.out, results_markdown(machine, runs, started, finished, load_before, load_text()))
+    write_text(args.out, results_markdown(machine, runs, started, finished, load_before, load_text(),
+                                          args.quick))
     print(f"\nresults written to {args.out}")
     return 1 if failed else 0
 
