@@ -201,9 +201,11 @@ def main(n=10_000, n_base=20):
         print(f"cost against the number of parcels (petterssen, {all_threads} threads, best of "
               f"{args.repeats}; constant us per parcel-step = linear):")
         for count in (1_000, 3_000, 10_000, 30_000):
-            el, res, _ = best("petterssen", count, all_threads)
-            print(f"  {count:6d} parcels  {el:6.2f} s  {el / (count * res.n_steps) * 1e6:6.3f} us "
-                  f"per parcel-step")
+            el, res, cpu = best("petterssen", count, all_threads)
+            steps = count * res.n_steps
+            print(f"  {count:6d} parcels  {el:6.2f} s  {el / steps * 1e6:6.3f} us per parcel-step "
+                  f"(CPU {cpu['cpu'] / steps * 1e6:6.3f} us, idle-machine estimate "
+                  f"{cpu['idle_estimate'] / steps * 1e6:6.3f} us)")
     print(f"after: {_load_text()}")
 
 
