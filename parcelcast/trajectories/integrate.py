@@ -350,13 +350,16 @@ def integrate(
 
         return f
 
-    def ground_pressure(la, lo, mem, wt):
+    def ground_pressure(where, mem, wt):
+        """Ground pressure (Pa) at ``where``: unit vectors (n, 3), or a (lat, lon) pair;
+        positions are only turned into latitudes and longitudes if surface pressure is there."""
         a, b = state["a"], state["b"]
         if "surface_pressure" in a:
+            la, lo = to_lat_lon(where) if isinstance(where, np.ndarray) else where
             loc = locate(geom, la, lo, None, mem)
             ps = blend(sample_scalar(loc, a["surface_pressure"]), sample_scalar(loc, b["surface_pressure"]), wt)
             return np.where(np.isnan(ps), levels[0] if levels is not None else np.inf, ps)
-        return np.full(la.shape, levels[0] if levels is not None else np.inf)
+        return np.full(len(mem), levels[0] if levels is not None else np.inf)
 
     def record(obs, t, idx):
         if idx.size == 0:
@@ -393,7 +396,7 @@ def integrate(
         raise StartPointError("pressure", f"{bad / 100:g} hPa",
                               f"{levels[-1] / 100:g}..{levels[0] / 100:g} hPa")
     if mode == "isobaric" or mode == "3d":
-        gp = ground_pressure(lat, lon, member, wt_of(t0))
+        gp = ground_pressure((lat, lon), member, wt_of(t0))
         ground_now[:] = z > gp + 1e-6
         touched |= ground_now
         if mode == "3d":
@@ -423,10 +426,9 @@ def integrate(
             x1, z1, code = step_fn(f, x[idx], z[idx], t, dt, iterations) if scheme == "petterssen" \
                 else step_fn(f, x[idx], z[idx], t, dt)
             total_steps += 1
-            la, lo = to_lat_lon(x1)
             wt_end = wt_of(t + dt)
             if mode in ("3d", "isobaric"):
-                gp = ground_pressure(la, lo, member[idx], wt_end)
+                gp = ground_pressure(x1, member[idx], wt_end)
                 under = (z1 > gp + 1e-6) & (code == 0)
                 ground_now[idx] = under
                 if mode == "3d":
