@@ -39,7 +39,8 @@ def run(args) -> int:
 
     roles = ("temperature", "u", "v") if args.wind == "actual" else ("temperature", "geopotential")
     roles += ("surface_pressure", "orography")  # to mask levels below the ground
-    ds = open_analysis(args.files, dict(args.var), roles=roles)
+    ds = open_analysis(args.files, dict(args.var), roles=roles,
+                       levels=args.level * 100.0)  # read that level only (Pa)
     fields = advection_on_level(ds, args.level, args.time, args.wind)
     if args.at is not None:
         summary = point_summary(fields, *args.at)

@@ -1,18 +1,18 @@
 """GRIB (editions 1 and 2) through cfgrib/eccodes, without touching the user's folder.
 
-cfgrib splits a file into groups of fields that share a level type and level
-set; we open them all (``cfgrib.open_datasets``) and keep the isobaric groups
-(upper-air fields) and the single-level groups (surface, 2 m) apart.  Index
-files go to our own cache folder, never next to the input.
-
-A damaged file may open in part without complaint; :func:`scan_messages`
-walks the file with eccodes and reports what could not be decoded.
+A first walk over the message headers (:func:`scan_messages`) lists every field and
+notices damaged messages (a damaged file may otherwise open in part without complaint).
+cfgrib then opens only the fields the caller's roles can use (``filter_by_keys`` on
+level type and short name), keeping the isobaric groups (upper-air fields) and the
+single-level groups (surface, 2 m) apart.  Index files go to our own cache folder,
+never next to the input.
 """
 
 from __future__ import annotations
 
 import hashlib
 import logging
+import mmap
 import os
 import warnings
 from dataclasses import dataclass, field
@@ -22,6 +22,9 @@ from parcelcast.errors import InputFileError
 
 _LEVEL_TYPES_UPPER = ("isobaricInhPa", "isobaricInPa")
 _LEVEL_TYPES_SINGLE = ("surface", "heightAboveGround")
+#: message keys the scan records; cfgrib names variables by cfVarName and sets
+#: standard_name from cfName, so these are what role recognition can match
+_SCAN_KEYS = ("shortName", "cfVarName", "cfName", "typeOfLevel")
 
 
 def index_cache_dir() -> Path:
@@ -42,12 +45,14 @@ def _index_path(path: Path) -> str:
 
 @dataclass
 class GribScan:
-    """What a walk through a GRIB file found: decoded fields and undecodable messages."""
+    """What a walk through a GRIB file found: decoded fields and undecodable messages.
+
+    ``decoded`` counts fields (a GRIB 2 message may hold several), ``failed`` messages."""
 
     decoded: int = 0
     failed: int = 0
     problem: str = ""
-    fields: list[str] = field(default_factory=list)
+    messages: list[dict] = field(default_factory=list)  # keys of each decoded field
     grid: dict = field(default_factory=dict)  # projection keys of the first projected message
     wind_flags: set = field(default_factory=set)  # u/v relative to the grid? one per message
     earth: dict = field(default_factory=dict)  # shape of the Earth keys of the first message
@@ -68,9 +73,9 @@ class GribScan:
     def summary(self, limit: int = 12) -> str:
         """Readable fields grouped by name and level type, e.g. ``t@isobaricInhPa: 500``."""
         groups: dict[str, list[str]] = {}
-        for item in self.fields:
-            name, level = item.rsplit(":", 1)
-            groups.setdefault(name, []).append(level)
+        for keys in self.messages:
+            name = f"{keys['shortName']}@{keys['typeOfLevel']}"
+            groups.setdefault(name, []).append(str(keys["level"]))
         parts = [f"{name} ({', '.join(levels)})" for name, levels in groups.items()]
         more = f" and {len(parts) - limit} more" if len(parts) > limit else ""
         return "; ".join(parts[:limit]) + more
@@ -150,45 +155,80 @@ def _load_proj_first() -> None:
 
 
 def scan_messages(path: Path) -> GribScan:
-    """Walk the file message by message, decoding each with eccodes.
+    """Walk the file message by message, reading the headers of each with eccodes.
 
     A message whose stated length runs past the end of the file, lacks its
-    ``7777`` end marker, or does not decode counts as failed; the walk then
-    resumes at the next ``GRIB`` marker so later intact messages are still seen.
+    ``7777`` end marker, or whose headers do not decode counts as failed; the walk
+    then resumes at the next ``GRIB`` marker so later intact messages are still seen.
+    The file is memory-mapped and only headers are decoded, so the cost follows the
+    file's length and the memory stays small whatever its size.
     """
     import eccodes
 
     scan = GribScan()
-    data = path.read_bytes()
-    offset = data.find(b"GRIB")
-    while offset >= 0:
-        length = _message_length(data, offset)
-        message = data[offset:offset + length] if length else b""
-        ok = length > 0 and offset + length <= len(data) and message.endswith(b"7777")
-        if ok:
-            try:
-                gid = eccodes.codes_new_from_message(message)
-                try:
-                    name = eccodes.codes_get(gid, "shortName")
-                    ltype = eccodes.codes_get(gid, "typeOfLevel")
-                    level = eccodes.codes_get(gid, "level")
-                    _note_projection(gid, name, scan)
-                finally:
-                    eccodes.codes_release(gid)
-                scan.fields.append(f"{name}@{ltype}:{level}")
-                scan.decoded += 1
-                offset = data.find(b"GRIB", offset + length)
-                continue
-            except Exception as exc:  # eccodes raises its own error classes
-                scan.problem = scan.problem or f"message at byte {offset}: {exc}"
-        else:
-            scan.problem = scan.problem or (
-                f"message at byte {offset} is truncated or malformed "
-                f"(stated length {length}, file size {len(data)})"
-            )
-        scan.failed += 1
-        offset = data.find(b"GRIB", offset + 4)
+    with open(path, "rb") as handle:
+        if path.stat().st_size == 0:
+            return scan
+        with mmap.mmap(handle.fileno(), 0, access=mmap.ACCESS_READ) as data:
+            offset = data.find(b"GRIB")
+            while offset >= 0:
+                length = _message_length(data, offset)
+                ok = (length > 16 and offset + length <= len(data)
+                      and data[offset + length - 4:offset + length] == b"7777")
+                if ok:
+                    try:
+                        for gid in _fields_of_message(handle, offset):
+                            try:
+                                scan.messages.append(_message_keys(gid))
+                                _note_projection(gid, scan.messages[-1]["shortName"], scan)
+                            finally:
+                                eccodes.codes_release(gid)
+                            scan.decoded += 1
+                        offset = data.find(b"GRIB", offset + length)
+                        continue
+                    except Exception as exc:  # eccodes raises its own error classes
+                        scan.problem = scan.problem or f"message at byte {offset}: {exc}"
+                else:
+                    scan.problem = scan.problem or (
+                        f"message at byte {offset} is truncated or malformed "
+                        f"(stated length {length}, file size {len(data)})"
+                    )
+                scan.failed += 1
+                offset = data.find(b"GRIB", offset + 4)
     return scan
+
+
+def _fields_of_message(handle, offset: int):
+    """eccodes handles (headers only) of every field in the message at ``offset``.
+
+    A GRIB 2 message may carry several fields (NCEP packs u and v together);
+    eccodes' multi-field mode returns them one by one, then the next message's.
+    """
+    import eccodes
+
+    handle.seek(offset)
+    eccodes.codes_grib_multi_support_on()
+    eccodes.codes_grib_multi_support_reset_file(handle)
+    try:
+        while True:
+            gid = eccodes.codes_grib_new_from_file(handle, headers_only=True)
+            if gid is None:
+                return
+            if eccodes.codes_get(gid, "offset") != offset:
+                eccodes.codes_release(gid)
+                return
+            yield gid
+    finally:
+        eccodes.codes_grib_multi_support_off()  # cfgrib's random access needs it off
+
+
+def _message_keys(gid) -> dict:
+    """The keys by which a message is recognised (names, level type, level)."""
+    import eccodes
+
+    keys = {key: eccodes.codes_get(gid, key) for key in _SCAN_KEYS}
+    keys["level"] = eccodes.codes_get(gid, "level")
+    return keys
 
 
 @dataclass
@@ -198,35 +238,77 @@ class GribGroups:
     upper: list  # list[xarray.Dataset]
     single: list  # list[xarray.Dataset]
     scan: GribScan
+    names: list[str]  # variable names of every upper-air and single-level field in the file
 
     def crs(self):
         """The projection of the file's grid (``pyproj.CRS``), or None for lat-lon grids."""
         return projection_crs(self.scan.grid) if self.scan.grid else None
 
 
-def open_grib(path: Path) -> GribGroups:
-    """Open every field group of a GRIB file; raise InputFileError if nothing decodes."""
+def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
+    """Open the field groups of a GRIB file that can hold ``roles``; raise InputFileError
+    if nothing decodes.
+
+    Only messages whose names could match a wanted role (``io/roles.py``: CF standard
+    name, GRIB short name, common name, or the ``--var`` override) at a fitting level
+    type are handed to cfgrib, through ``filter_by_keys``: the cost follows the fields
+    used, not the number of field groups in the file.
+    """
     _load_proj_first()
     import cfgrib
 
     scan = scan_messages(path)
     if scan.decoded == 0:
         raise InputFileError(path, f"no GRIB message could be decoded ({scan.problem or 'empty file'})")
-    logging.getLogger("cfgrib").setLevel(logging.CRITICAL)
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
-            # reads only those, and otherwise writes its index next to the input.
-            groups = cfgrib.open_datasets(str(path), backend_kwargs={"indexpath": _index_path(path)},
-                                          cache_geo_coords=True)
-    except Exception as exc:
-        raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
-    upper, single = [], []
-    for group in groups:
-        level_types = {v.attrs.get("GRIB_typeOfLevel") for v in group.data_vars.values()}
-        if level_types & set(_LEVEL_TYPES_UPPER):
-            upper.append(group)
-        elif level_types & set(_LEVEL_TYPES_SINGLE):
-            single.append(group)
-    return GribGroups(upper=upper, single=single, scan=scan)
+    backend = {"indexpath": _index_path(path)}
+    parts = {}
+    for part, filter_by_keys in grib_filters(scan, roles, overrides).items():
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")
+                # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
+                # reads only those, and otherwise writes its index next to the input.
+                parts[part] = cfgrib.open_datasets(
+                    str(path), backend_kwargs={**backend, "filter_by_keys": filter_by_keys},
+                    cache_geo_coords=True)
+        except Exception as exc:
+            raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
+    names = sorted({m["cfVarName"] for m in scan.messages
+                    if m["typeOfLevel"] in _LEVEL_TYPES_UPPER + _LEVEL_TYPES_SINGLE})
+    return GribGroups(upper=parts.get("upper", []), single=parts.get("single", []), scan=scan,
+                      names=names)
+
+
+def grib_filters(scan: GribScan, roles=None, overrides=None) -> dict[str, dict]:
+    """cfgrib ``filter_by_keys`` for the upper-air and single-level parts (absent: none wanted).
+
+    A message is wanted if its level type suits a wanted role (isobaric for roles on
+    levels, surface or height above ground for the others) and one of its names would
+    match that role in ``io/analysis.py``'s recognition.
+    """
+    from parcelcast.io.roles import ROLES
+
+    overrides = overrides or {}
+    wanted = [ROLES[name] for name in (roles if roles is not None else ROLES)]
+    chosen: dict[str, tuple[set, set]] = {}
+    for keys in scan.messages:
+        level_type = keys["typeOfLevel"]
+        part = ("upper" if level_type in _LEVEL_TYPES_UPPER
+                else "single" if level_type in _LEVEL_TYPES_SINGLE else None)
+        if part is None:
+            continue
+        for role in wanted:
+            if role.on_levels != (part == "upper"):
+                continue
+            if role.name in overrides:
+                match = overrides[role.name] == keys["cfVarName"]
+            else:
+                match = (keys["cfName"] in role.standard_names
+                         or keys["shortName"] in role.grib_short_names
+                         or keys["cfVarName"].lower() in role.common_names)
+            if match:
+                types, names = chosen.setdefault(part, (set(), set()))
+                types.add(level_type)
+                names.add(keys["shortName"])
+    return {part: {"typeOfLevel": sorted(types), "shortName": sorted(names)}
+            for part, (types, names) in chosen.items()}
