@@ -28,8 +28,11 @@ from parcelcast.errors import (
 )
 from parcelcast.grid import earth as earth_radius
 from parcelcast.io import coords as coordinates
+from parcelcast.io.lazy_dask import defer_dask_import
 from parcelcast.io.roles import PLAUSIBLE_RANGE, ROLES, Role
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
+
+defer_dask_import()
 
 def expand_paths(paths) -> list[Path]:
     """Expand globs; every pattern must match at least one existing file."""
