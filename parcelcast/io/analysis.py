@@ -30,6 +30,7 @@ from parcelcast.grid import earth as earth_radius
 from parcelcast.io import coords as coordinates
 from parcelcast.io.lazy_dask import defer_dask_import
 from parcelcast.io.roles import PLAUSIBLE_RANGE, ROLES, Role
+from parcelcast.progress import progress
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
 
 defer_dask_import()
@@ -106,7 +107,11 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
     wanted = list(roles) if roles is not None else list(ROLES)
     files = expand_paths(paths)
     levels = None if levels is None else [float(p) for p in np.atleast_1d(levels)]
-    pieces = [_open_one(path, overrides, wanted, allow_damaged, chunks, levels) for path in files]
+    pieces = []
+    with progress("opening analyses", total=len(files)) as advance:
+        for path in files:
+            pieces.append(_open_one(path, overrides, wanted, allow_damaged, chunks, levels))
+            advance()
     ds = pieces[0] if len(pieces) == 1 else _combine_along_time(pieces, files)
     ds.attrs["source_files"] = ";".join(str(p) for p in files)
     ds.attrs["Conventions"] = "CF-1.10"

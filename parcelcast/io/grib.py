@@ -10,14 +10,15 @@ never next to the input.
 
 from __future__ import annotations
 
+import glob
 import hashlib
-import logging
+import json
 import mmap
-import os
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
+from parcelcast.cache import cache_folder, check_private_file, make_private, prune
 from parcelcast.errors import InputFileError
 
 _LEVEL_TYPES_UPPER = ("isobaricInhPa", "isobaricInPa")
@@ -27,20 +28,22 @@ _LEVEL_TYPES_SINGLE = ("surface", "heightAboveGround")
 _SCAN_KEYS = ("shortName", "cfVarName", "cfName", "typeOfLevel")
 
 
-def index_cache_dir() -> Path:
-    """Folder for cfgrib index files (``PARCELCAST_CACHE`` or ``~/.cache/parcelcast``)."""
-    root = os.environ.get("PARCELCAST_CACHE") or Path.home() / ".cache" / "parcelcast"
-    path = Path(root) / "grib-index"
-    path.mkdir(parents=True, exist_ok=True)
-    return path
+def _file_key(path: Path) -> str:
+    """Name of the cache entries of one version of a file (path, size, modification time)."""
+    info = path.stat()
+    key = f"{path.resolve()}|{info.st_size}|{info.st_mtime_ns}".encode()
+    return f"{path.name}.{hashlib.sha1(key).hexdigest()[:16]}"
 
 
 def _index_path(path: Path) -> str:
-    stat = path.stat()
-    key = f"{path.resolve()}|{stat.st_size}|{stat.st_mtime_ns}".encode()
-    digest = hashlib.sha1(key).hexdigest()[:16]
-    # cfgrib fills {short_hash} with a hash of the filter keys.
-    return str(index_cache_dir() / f"{path.name}.{digest}.{{short_hash}}.idx")
+    """cfgrib's index file for ``path`` in our private cache; existing ones are checked first
+    (cfgrib unpickles them, see ``parcelcast/cache.py``)."""
+    folder = cache_folder("grib-index")
+    stem = _file_key(path)
+    for existing in folder.glob(f"{glob.escape(stem)}.*.idx"):
+        check_private_file(existing)
+    # cfgrib fills {short_hash} with a hash of the index keys.
+    return str(folder / f"{stem}.{{short_hash}}.idx")
 
 
 @dataclass
@@ -154,6 +157,26 @@ def _load_proj_first() -> None:
     import pyproj  # noqa: F401
 
 
+def cached_scan(path: Path) -> GribScan:
+    """:func:`scan_messages`, kept in the cache (JSON) for each version of the file."""
+    entry = cache_folder("grib-scan") / f"{_file_key(path)}.json"
+    check_private_file(entry)
+    try:
+        keys = json.loads(entry.read_text())
+        keys["wind_flags"] = set(keys["wind_flags"])
+        return GribScan(**keys)
+    except (OSError, ValueError, TypeError, KeyError):
+        pass  # not scanned yet, or an entry from another version of parcelcast
+    scan = scan_messages(path)
+    record = asdict(scan)
+    record["wind_flags"] = sorted(record["wind_flags"])
+    temporary = entry.with_name(entry.name + ".part")
+    temporary.write_text(json.dumps(record))
+    make_private(temporary)
+    temporary.replace(entry)
+    return scan
+
+
 def scan_messages(path: Path) -> GribScan:
     """Walk the file message by message, reading the headers of each with eccodes.
 
@@ -257,7 +280,7 @@ def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
     _load_proj_first()
     import cfgrib
 
-    scan = scan_messages(path)
+    scan = cached_scan(path)
     if scan.decoded == 0:
         raise InputFileError(path, f"no GRIB message could be decoded ({scan.problem or 'empty file'})")
     backend = {"indexpath": _index_path(path)}
@@ -273,6 +296,10 @@ def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
                     cache_geo_coords=True)
         except Exception as exc:
             raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
+    for written in Path(backend["indexpath"]).parent.glob(f"{glob.escape(_file_key(path))}.*.idx"):
+        make_private(written)  # cfgrib writes with the umask's permissions
+    for folder in ("grib-index", "grib-scan"):
+        prune(cache_folder(folder))
     names = sorted({m["cfVarName"] for m in scan.messages
                     if m["typeOfLevel"] in _LEVEL_TYPES_UPPER + _LEVEL_TYPES_SINGLE})
     return GribGroups(upper=parts.get("upper", []), single=parts.get("single", []), scan=scan,
