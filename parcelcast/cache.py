@@ -3,9 +3,10 @@
 The folder is ``$PARCELCAST_CACHE`` if set, else the user's cache folder
 (``$XDG_CACHE_HOME/parcelcast``, by default ``~/.cache/parcelcast`` on Linux, through
 platformdirs).  It holds GRIB index files (``grib-index/``), the results of the GRIB
-message scan (``grib-scan/``) and numba's compiled kernels (``numba/``).
+message scan (``grib-scan/``), numba's compiled kernels (``numba/``) and pint's
+parsed unit definitions (``pint/``).
 
-cfgrib's index files and numba's cache index are read back with pickle, and
+cfgrib's index files, numba's cache index and pint's cache are read back with pickle, and
 unpickling a planted file runs its code.  So the folder is made private to the user
 (mode 0700), and a folder or file that someone else owns or can write is refused
 rather than read.  Each sub-folder is kept under a size bound (oldest files removed
@@ -14,6 +15,7 @@ first): ``$PARCELCAST_CACHE_MAX_MB`` megabytes, 200 by default.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import stat
 from pathlib import Path
@@ -87,6 +89,26 @@ def _refuse_if_shared(path: Path, info: os.stat_result, what: str) -> None:
             f"{what} {path} can be written by others (mode {stat.S_IMODE(info.st_mode):o}); it is not "
             "read because its files are loaded with pickle, which can run code. Remove it or "
             "make it private (chmod go-w)")
+
+
+@contextlib.contextmanager
+def private_cache_files(name: str):
+    """A cache sub-folder for a library that pickles into it (pint): every file in it is
+    checked before the library reads, and made private after it writes.  Yields the folder,
+    or None (no cache: the library works without) if it is not safe."""
+    try:
+        folder = cache_folder(name)
+        for path in folder.iterdir():
+            check_private_file(path)
+    except (OSError, UnsafeCacheError) as exc:
+        import logging
+
+        logging.getLogger("parcelcast").warning(f"not using the {name} cache: {exc}")
+        yield None
+        return
+    yield folder
+    for path in folder.iterdir():
+        make_private(path)
 
 
 def max_bytes() -> int:

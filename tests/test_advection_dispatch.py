@@ -13,7 +13,7 @@ import sys
 import numpy as np
 import pytest
 
-from datasets import data_file
+from datasets import data_file, raw_cf, small_atmosphere, write_netcdf
 from parcelcast import advection as adv_module
 from parcelcast.advection import advection_array
 from parcelcast.grid.latlon import LatLonGrid
@@ -63,17 +63,43 @@ import contextlib, io, sys
 from parcelcast.cli import main
 with contextlib.redirect_stdout(io.StringIO()):
     status = main(["advect", sys.argv[1], "--level", "850", "--at", "50,5", "--json"])
-heavy = ("matplotlib", "cartopy", "dask.array", "dask.distributed", "numba")
+heavy = ("matplotlib", "cartopy", "dask", "numba")
 print(status, *[name for name in heavy if name in sys.modules])
 """
 
 
 @pytest.mark.realdata
 def test_one_point_advect_imports_no_drawing_chunking_or_compiler():
-    """No matplotlib, cartopy, dask.array or numba for a one-point question on a 2.5-degree grid.
-    (pint imports dask's small core, ``dask.base``, by itself when dask is installed.)"""
+    """No matplotlib, cartopy, dask or numba for a one-point question on a 2.5-degree grid."""
     path = data_file("gfs-20111008T00-f072-global-2p5deg.grb2")
     done = subprocess.run([sys.executable, "-c", _IMPORTS_AFTER_ADVECT, str(path)],
                           capture_output=True, text=True, timeout=120)
     assert done.returncode == 0, done.stderr[-2000:]
     assert done.stdout.split() == ["0"], done.stdout
+
+
+_CHUNKED_AFTER_ADVECT = r"""
+import contextlib, io, sys
+from parcelcast.cli import main
+from parcelcast.io.analysis import open_analysis
+with contextlib.redirect_stdout(io.StringIO()):
+    main(["advect", sys.argv[1], "--level", "850", "--at", "50,5", "--json"])
+lazy = open_analysis(sys.argv[2], chunks={"time": 1})
+import dask.array
+import xarray as xr
+eager = open_analysis(sys.argv[2])
+assert isinstance(lazy["temperature"].data, dask.array.Array)
+xr.testing.assert_identical(lazy["temperature"].compute(), eager["temperature"])
+print("ok")
+"""
+
+
+@pytest.mark.realdata
+def test_chunked_reading_still_works_after_dask_was_kept_out(tmp_path):
+    path = data_file("gfs-20111008T00-f072-global-2p5deg.grb2")
+    lat, lon, t, u, v = small_atmosphere()
+    netcdf = write_netcdf(raw_cf(lat, lon, t, u, v), tmp_path / "small.nc")
+    done = subprocess.run([sys.executable, "-c", _CHUNKED_AFTER_ADVECT, str(path), str(netcdf)],
+                          capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr[-2000:]
+    assert done.stdout.split() == ["ok"]

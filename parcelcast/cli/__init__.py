@@ -104,7 +104,10 @@ def main(argv: list[str] | None = None) -> int:
     from parcelcast.cache import configure_numba_cache
     from parcelcast.errors import ParcelcastError
 
+    from parcelcast.io.lazy_dask import import_pint_without_dask
+
     configure_numba_cache()  # before any kernel module imports numba
+    import_pint_without_dask()  # dask only for commands that chunk
 
     module = importlib.import_module(COMMANDS[args.command][0])
     try:

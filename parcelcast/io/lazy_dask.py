@@ -57,3 +57,22 @@ def defer_dask_import() -> None:
     ask_dask = getattr(utils, "is_dask_collection", None)
     if callable(ask_dask) and not getattr(ask_dask, "deferred", False):
         utils.is_dask_collection = _when_dask_imported(ask_dask)
+
+
+def import_pint_without_dask() -> None:
+    """Import pint so that it does not import dask (command line only).
+
+    pint imports dask's core (0.1-0.3 s) whenever dask is installed, only to give quantities
+    that wrap dask arrays their ``compute``/``persist`` methods.  The command line never
+    makes such quantities (pint gives it conversion factors), so it imports pint while
+    dask is hidden.  A library user's pint is left as it is: this runs only from
+    ``parcelcast.cli.main``, before anything imported pint or dask.
+    """
+    if "pint" in sys.modules or "dask" in sys.modules:
+        return
+    sys.modules["dask"] = None  # importlib.util.find_spec("dask") is then None
+    try:
+        import pint  # noqa: F401
+    finally:
+        if sys.modules.get("dask", 0) is None:
+            del sys.modules["dask"]
