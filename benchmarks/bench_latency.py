@@ -9,7 +9,8 @@ Measures, in one run, each as a fresh process:
    ``$PARCELCAST_DATA``), the commands of issue 8;
 3. each: one warm-up run, then the best of ``--repeat`` runs, as seconds and as a ratio to
    the floor (best of the same number of runs, measured between the commands so that a
-   change in the machine's load touches both);
+   change in the machine's load touches both), in wall-clock and in CPU seconds (user +
+   system: a loaded machine stretches the wall clock more than the CPU time);
 4. the cold first run: an empty cache folder (no GRIB index or scan, no compiled kernels),
    as after a fresh install, and the first run after the set-up's ``parcelcast prepare``.
 
@@ -23,6 +24,7 @@ from __future__ import annotations
 import argparse
 import os
 import platform
+import resource
 import subprocess
 import sys
 import tempfile
@@ -56,17 +58,23 @@ def command_of(name: str, args: list[str]) -> list[str]:
     return [*CLI, name.split()[0], str(data_dir() / args[0]), *args[1:]]
 
 
-def seconds(command: list[str], env: dict) -> float:
+def seconds(command: list[str], env: dict) -> tuple[float, float]:
+    """Wall-clock and CPU (user + system) seconds of one run of ``command``."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     done = subprocess.run(command, env=env, capture_output=True, text=True)
     elapsed = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
     if done.returncode != 0:
         raise SystemExit(f"failed ({done.returncode}): {' '.join(command)}\n{done.stderr[-2000:]}")
-    return elapsed
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return elapsed, cpu
 
 
-def best(command: list[str], env: dict, repeat: int) -> float:
-    return min(seconds(command, env) for _ in range(repeat))
+def best(command: list[str], env: dict, repeat: int) -> tuple[float, float]:
+    """Best wall-clock and best CPU seconds of ``repeat`` runs."""
+    runs = [seconds(command, env) for _ in range(repeat)]
+    return min(r[0] for r in runs), min(r[1] for r in runs)
 
 
 def environment(cache: Path) -> dict:
@@ -90,8 +98,8 @@ def cold_runs(cases, prepared: bool) -> list[tuple[str, float, float]]:
             env = environment(Path(folder))
             if prepared:
                 seconds([*CLI, "prepare"], env)
-            floor = seconds(FLOOR, env)
-            rows.append((name, seconds(command_of(name, args), env), floor))
+            floor = seconds(FLOOR, env)[0]
+            rows.append((name, seconds(command_of(name, args), env)[0], floor))
     return rows
 
 
@@ -109,14 +117,19 @@ def main() -> None:
         seconds(FLOOR, env)  # warm the file-system cache for the floor too
         print(f"\nwarm runs: best of {args.repeat} after a warm-up; floor = best of {args.repeat} "
               "of `python -c 'import pyproj, xarray, cfgrib'` measured just before each command")
-        print(f"{'command':<36} {'seconds':>8} {'floor s':>8} {'ratio':>6} {'target':>7}")
+        print("(wall: elapsed seconds; cpu: user + system seconds of the process, less touched "
+              "by other load)")
+        print(f"{'command':<36} {'wall s':>7} {'floor':>6} {'ratio':>6}   {'cpu s':>6} {'floor':>6} "
+              f"{'ratio':>6}  {'target':>6}")
         for name, case_args, target in CASES:
             command = command_of(name, case_args)
             seconds(command, env)  # warm-up: GRIB index and scan cached, kernels loaded once
             floor = best(FLOOR, env, args.repeat)
             took = best(command, env, args.repeat)
-            verdict = "ok" if took / floor <= target else "OVER"
-            print(f"{name:<36} {took:8.2f} {floor:8.2f} {took / floor:6.2f} {target:6.1f}x {verdict}")
+            wall, cpu = took[0] / floor[0], took[1] / floor[1]
+            verdict = "ok" if wall <= target else "OVER"
+            print(f"{name:<36} {took[0]:7.2f} {floor[0]:6.2f} {wall:6.2f}   {took[1]:6.2f} {floor[1]:6.2f} "
+                  f"{cpu:6.2f}  {target:5.1f}x {verdict}")
     if args.no_cold:
         return
     for prepared, title in ((False, "cold first run, empty cache (fresh install, no set-up step)"),
