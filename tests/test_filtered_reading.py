@@ -107,3 +107,22 @@ def test_advect_answer_from_a_filtered_read_equals_the_full_read(monkeypatch):
         answers.append(point_summary(advection_on_level(ds, 850.0, None, "actual"), 50.0, 5.0))
     assert answers[0] == answers[1]
     assert np.isfinite(answers[0]["advection_K_per_h"])
+
+
+@pytest.mark.parametrize("name", [GFS, ENS], ids=["gfs", "era5"])
+def test_scan_names_equal_eccodes_read_message_by_message(name):
+    """The scan looks names up once per parameter; the second route reads every key of every
+    field with eccodes (multi-field messages included), as cfgrib does when indexing."""
+    import eccodes
+
+    keys = ("shortName", "cfVarName", "cfName", "typeOfLevel", "level")
+    expected = []
+    with open(data_file(name), "rb") as handle:
+        eccodes.codes_grib_multi_support_on()
+        try:
+            while (gid := eccodes.codes_grib_new_from_file(handle)) is not None:
+                expected.append({key: eccodes.codes_get(gid, key) for key in keys})
+                eccodes.codes_release(gid)
+        finally:
+            eccodes.codes_grib_multi_support_off()
+    assert grib.scan_messages(data_file(name)).messages == expected

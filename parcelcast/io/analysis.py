@@ -179,7 +179,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
         raw_names = groups.names
         if groups.scan.damaged:
             damaged = (
-                f"{groups.scan.decoded} GRIB message(s) decoded, {groups.scan.failed} could not be "
+                f"{groups.scan.decoded} GRIB field(s) decoded, {groups.scan.failed} message(s) could not be "
                 f"({groups.scan.problem}); readable: {groups.scan.summary() or 'nothing'}"
             )
             if not allow_damaged:

@@ -13,6 +13,7 @@ from __future__ import annotations
 import glob
 import hashlib
 import json
+import logging
 import mmap
 import warnings
 from dataclasses import asdict, dataclass, field
@@ -21,11 +22,13 @@ from pathlib import Path
 from parcelcast.cache import cache_folder, check_private_file, make_private, prune
 from parcelcast.errors import InputFileError
 
+LOGGER = logging.getLogger(__name__)
+
 _LEVEL_TYPES_UPPER = ("isobaricInhPa", "isobaricInPa")
 _LEVEL_TYPES_SINGLE = ("surface", "heightAboveGround")
-#: message keys the scan records; cfgrib names variables by cfVarName and sets
-#: standard_name from cfName, so these are what role recognition can match
-_SCAN_KEYS = ("shortName", "cfVarName", "cfName", "typeOfLevel")
+#: names the scan records (with typeOfLevel and level); cfgrib names variables by cfVarName
+#: and sets standard_name from cfName, so these are what role recognition can match
+_NAME_KEYS = ("shortName", "cfVarName", "cfName")
 
 
 def _file_key(path: Path) -> str:
@@ -164,7 +167,9 @@ def cached_scan(path: Path) -> GribScan:
     try:
         keys = json.loads(entry.read_text())
         keys["wind_flags"] = set(keys["wind_flags"])
-        return GribScan(**keys)
+        scan = GribScan(**keys)
+        LOGGER.debug(f"{path}: message scan taken from the cache ({entry})")
+        return scan
     except (OSError, ValueError, TypeError, KeyError):
         pass  # not scanned yet, or an entry from another version of parcelcast
     scan = scan_messages(path)
@@ -189,6 +194,7 @@ def scan_messages(path: Path) -> GribScan:
     import eccodes
 
     scan = GribScan()
+    names_of_parameter: dict = {}
     with open(path, "rb") as handle:
         if path.stat().st_size == 0:
             return scan
@@ -200,9 +206,10 @@ def scan_messages(path: Path) -> GribScan:
                       and data[offset + length - 4:offset + length] == b"7777")
                 if ok:
                     try:
-                        for gid in _fields_of_message(handle, offset):
+                        for gid in _fields_of_message(handle, offset,
+                                                      _field_count(data, offset, length)):
                             try:
-                                scan.messages.append(_message_keys(gid))
+                                scan.messages.append(_message_keys(gid, names_of_parameter))
                                 _note_projection(gid, scan.messages[-1]["shortName"], scan)
                             finally:
                                 eccodes.codes_release(gid)
@@ -221,37 +228,62 @@ def scan_messages(path: Path) -> GribScan:
     return scan
 
 
-def _fields_of_message(handle, offset: int):
-    """eccodes handles (headers only) of every field in the message at ``offset``.
+def _field_count(data, offset: int, length: int) -> int:
+    """Number of fields in the GRIB message at ``offset``: 1 in edition 1; in edition 2 the
+    number of data sections (section 7), read from the section headers (length, number)."""
+    if data[offset + 7] != 2:
+        return 1
+    position, end, count = offset + 16, offset + length - 4, 0
+    while position + 5 <= end:
+        section_length = int.from_bytes(data[position:position + 4], "big")
+        if section_length < 5:
+            break
+        count += data[position + 4] == 7
+        position += section_length
+    if position != end or count == 0:
+        raise ValueError("its sections do not add up to the stated length, or it has no data section")
+    return count
 
-    A GRIB 2 message may carry several fields (NCEP packs u and v together);
-    eccodes' multi-field mode returns them one by one, then the next message's.
+
+def _fields_of_message(handle, offset: int, count: int):
+    """eccodes handles (headers only) of the ``count`` fields of the message at ``offset``.
+
+    A GRIB 2 message may carry several fields (NCEP packs u and v together); eccodes'
+    multi-field mode returns them one by one.
     """
     import eccodes
 
     handle.seek(offset)
-    eccodes.codes_grib_multi_support_on()
-    eccodes.codes_grib_multi_support_reset_file(handle)
+    if count > 1:
+        eccodes.codes_grib_multi_support_on()
+        eccodes.codes_grib_multi_support_reset_file(handle)
     try:
-        while True:
+        for _ in range(count):
             gid = eccodes.codes_grib_new_from_file(handle, headers_only=True)
-            if gid is None:
-                return
-            if eccodes.codes_get(gid, "offset") != offset:
+            if gid is not None and eccodes.codes_get(gid, "offset") != offset:
                 eccodes.codes_release(gid)
-                return
+                gid = None
+            if gid is None:
+                raise ValueError("eccodes did not read the fields its sections announce")
             yield gid
     finally:
-        eccodes.codes_grib_multi_support_off()  # cfgrib's random access needs it off
+        if count > 1:
+            eccodes.codes_grib_multi_support_off()  # cfgrib's random access needs it off
 
 
-def _message_keys(gid) -> dict:
-    """The keys by which a message is recognised (names, level type, level)."""
+def _message_keys(gid, names_of_parameter: dict) -> dict:
+    """The keys by which a message is recognised (names, level type, level).
+
+    The names (``shortName``, ``cfName``, ``cfVarName``) are eccodes concepts defined per
+    parameter, like ``paramId``; each takes about a millisecond to evaluate, so they are
+    looked up once per parameter (``names_of_parameter``: paramId -> names)."""
     import eccodes
 
-    keys = {key: eccodes.codes_get(gid, key) for key in _SCAN_KEYS}
-    keys["level"] = eccodes.codes_get(gid, "level")
-    return keys
+    parameter = eccodes.codes_get(gid, "paramId")
+    if parameter not in names_of_parameter:
+        names_of_parameter[parameter] = {key: eccodes.codes_get(gid, key) for key in _NAME_KEYS}
+    return {**names_of_parameter[parameter], "typeOfLevel": eccodes.codes_get(gid, "typeOfLevel"),
+            "level": eccodes.codes_get(gid, "level")}
 
 
 @dataclass
@@ -286,6 +318,7 @@ def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
     backend = {"indexpath": _index_path(path)}
     parts = {}
     for part, filter_by_keys in grib_filters(scan, roles, overrides).items():
+        LOGGER.debug(f"{path}: opening the {part} fields {filter_by_keys}")
         try:
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore")
