@@ -135,3 +135,18 @@ def test_prepare_compiles_every_kernel_into_our_cache_folder(tmp_path):
     assert report["cache"] == str(tmp_path / "cache" / "numba")
     compiled = {p.name.split(".")[0] for p in (tmp_path / "cache" / "numba").rglob("*.nbi")}
     assert compiled == {"_advection_kernel", "_kernel", "_parcel_kernel"}
+
+
+@pytest.mark.realdata
+def test_scan_entry_of_another_version_is_scanned_again(xdg):
+    """An entry lacking a key the scan now records (e.g. the shape of the Earth) is not trusted."""
+    from parcelcast.io import grib
+
+    path = data_file("era5-ens-20170101-20170102-z-t-850-500-3deg.grb1")
+    fresh = grib.cached_scan(path)
+    entry = cache.cache_folder("grib-scan") / f"{grib._file_key(path)}.json"
+    record = json.loads(entry.read_text())
+    del record["earth"]
+    entry.write_text(json.dumps(record))
+    again = grib.cached_scan(path)
+    assert again.earth == fresh.earth and again.earth

@@ -102,8 +102,9 @@ def test_advect_answer_from_a_filtered_read_equals_the_full_read(monkeypatch):
     from parcelcast.cli.advect import point_summary
 
     path = data_file(GFS)
+    roles = ADVECT + ("surface_pressure", "orography")  # as cli/advect.py asks
     answers = []
-    for ds in (open_analysis(path, roles=ADVECT, levels=85_000.0), _full_read(monkeypatch, path, None)):
+    for ds in (open_analysis(path, roles=roles, levels=85_000.0), _full_read(monkeypatch, path, roles)):
         answers.append(point_summary(advection_on_level(ds, 850.0, None, "actual"), 50.0, 5.0))
     assert answers[0] == answers[1]
     assert np.isfinite(answers[0]["advection_K_per_h"])

@@ -16,7 +16,7 @@ import json
 import logging
 import mmap
 import warnings
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass, field, fields
 from pathlib import Path
 
 from parcelcast.cache import cache_folder, check_private_file, make_private, prune
@@ -166,12 +166,14 @@ def cached_scan(path: Path) -> GribScan:
     check_private_file(entry)
     try:
         keys = json.loads(entry.read_text())
+        if set(keys) != {item.name for item in fields(GribScan)}:
+            raise KeyError("written by another version of parcelcast")
         keys["wind_flags"] = set(keys["wind_flags"])
         scan = GribScan(**keys)
         LOGGER.debug(f"{path}: message scan taken from the cache ({entry})")
         return scan
     except (OSError, ValueError, TypeError, KeyError):
-        pass  # not scanned yet, or an entry from another version of parcelcast
+        pass  # not scanned yet, or an entry of another version of parcelcast (other keys)
     scan = scan_messages(path)
     record = asdict(scan)
     record["wind_flags"] = sorted(record["wind_flags"])
