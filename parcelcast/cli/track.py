@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 
 from parcelcast.cli._common import add_input_arguments, lat_lon, print_json, utc_time
 
