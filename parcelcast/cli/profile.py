@@ -14,6 +14,11 @@ import argparse
 from parcelcast.cli import _common
 
 
+#: what the analysis column and the gridded layer advection use (nothing else is read)
+COLUMN_ROLES = ("temperature", "geopotential", "relative_humidity", "specific_humidity", "u", "v",
+                "surface_pressure", "near_surface_temperature")
+
+
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("files", nargs="+", metavar="FILE",
                         help="a profile CSV file (header names quantity and unit, e.g. pressure_hPa, "
@@ -187,7 +192,7 @@ def run(args) -> int:
         from parcelcast.io.analysis import open_analysis
 
         lat, lon = args.at
-        ds = open_analysis(args.files, dict(args.var))
+        ds = open_analysis(args.files, dict(args.var), roles=COLUMN_ROLES)
         profile = column_from_analysis(ds, lat, lon, args.time, args.humidity_over)
         result = analyse(profile, advective_change=args.advected_change)
         if {"temperature", "u", "v"} <= set(ds.data_vars):

@@ -82,6 +82,7 @@ def _roles(args) -> tuple:
 def run(args) -> int:
     from parcelcast.cli import DISCLAIMER
     from parcelcast.io.analysis import open_analysis
+    from parcelcast.progress import note
     from parcelcast.trajectories.api import compute_trajectories
     from parcelcast.trajectories.output import to_json_dict, write_trajectories
     from parcelcast.units import Q_
@@ -89,8 +90,7 @@ def run(args) -> int:
     ds = open_analysis(args.files, dict(args.var), roles=_roles(args))
     hours = -args.back if args.back is not None else args.ahead
     if ds.sizes.get("time", 1) == 1:
-        print("parcelcast track: note: one analysis time only; the flow is treated as steady.",
-              file=sys.stderr)
+        note("track: one analysis time only; the flow is treated as steady.")
     lat, lon = args.point
     out = compute_trajectories(
         ds, lat, lon, Q_(args.level, "hPa"), Q_(hours, "h"), args.start,

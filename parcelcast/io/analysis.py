@@ -28,8 +28,12 @@ from parcelcast.errors import (
 )
 from parcelcast.grid import earth as earth_radius
 from parcelcast.io import coords as coordinates
+from parcelcast.io.lazy_dask import defer_dask_import
 from parcelcast.io.roles import HEIGHT_TOLERANCE_M, PLAUSIBLE_RANGE, ROLES, Role
+from parcelcast.progress import progress
 from parcelcast.units import QUANTITY_KINDS, convert, parse_units
+
+defer_dask_import()
 
 def expand_paths(paths) -> list[Path]:
     """Expand globs; every pattern must match at least one existing file."""
@@ -63,7 +67,7 @@ def detect_format(path: Path) -> str:
 
 
 def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
-                  allow_damaged: bool = False, chunks=None) -> xr.Dataset:
+                  allow_damaged: bool = False, chunks=None, levels=None) -> xr.Dataset:
     """Open analysis files into one canonical dataset, combined along time.
 
     Parameters
@@ -75,7 +79,12 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
         (``{"temperature": "TMP"}``); the command line's ``--var``.
     roles : iterable of str, optional
         Roles to look for (default: all known).  Missing roles are simply absent;
-        callers ask for what they need with :func:`require`.
+        callers ask for what they need with :func:`require`.  Only these are read:
+        a GRIB file's other fields are never decoded (``io/grib.py``).
+    levels : float or sequence of float, optional
+        Pressure levels (Pa) the caller will use.  Fields on levels are cut to these
+        before any value is read, so memory follows the levels used, not the file's
+        size; a field lacking one of them is kept whole (selection reports what exists).
     allow_damaged : bool
         A GRIB file in which some messages cannot be decoded is refused unless
         this is True (then the dataset's ``damaged`` attribute says what was lost).
@@ -97,7 +106,12 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
         )
     wanted = list(roles) if roles is not None else list(ROLES)
     files = expand_paths(paths)
-    pieces = [_open_one(path, overrides, wanted, allow_damaged, chunks) for path in files]
+    levels = None if levels is None else [float(p) for p in np.atleast_1d(levels)]
+    pieces = []
+    with progress("opening analyses", total=len(files)) as advance:
+        for path in files:
+            pieces.append(_open_one(path, overrides, wanted, allow_damaged, chunks, levels))
+            advance()
     ds = pieces[0] if len(pieces) == 1 else _combine_along_time(pieces, files)
     ds.attrs["source_files"] = ";".join(str(p) for p in files)
     ds.attrs["Conventions"] = "CF-1.10"
@@ -128,21 +142,44 @@ def require(ds: xr.Dataset, *roles: str, purpose: str = "") -> None:
 
 
 # --------------------------------------------------------------------------------------
-def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Dataset:
+def _only_levels(raw_vars: dict, levels) -> dict:
+    """The variables at ``levels`` (Pa) only, cut before any value is read (files open lazily).
+
+    All are left whole when one lacks a requested level, so that level selection later
+    reports the levels that exist (``selection.py``)."""
+    on_levels = [name for name, var in raw_vars.items() if "level" in var.dims]
+    if levels is None or not on_levels:
+        return raw_vars
+    index = {}
+    for name in on_levels:
+        have = np.asarray(raw_vars[name]["level"].values, dtype=np.float64)
+        if any(np.min(np.abs(have - p)) > _LEVEL_TOLERANCE_PA for p in levels):
+            return raw_vars
+        index[name] = sorted({int(np.argmin(np.abs(have - p))) for p in levels})
+    return {name: var.isel(level=index[name]) if name in index else var
+            for name, var in raw_vars.items()}
+
+
+#: a requested level matches a file's level within this (Pa); as selection.py's matching
+_LEVEL_TOLERANCE_PA = 1.0
+
+
+def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None) -> xr.Dataset:
     fmt = detect_format(path)
     damaged = ""
     if fmt == "grib":
         from parcelcast.io.grib import open_grib
 
-        groups = open_grib(path)
+        groups = open_grib(path, wanted, overrides)
         crs = groups.crs()
         upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
         single = [coordinates.standardise(g, path, crs) for g in groups.single]
         grid_relative = groups.scan.winds_grid_relative
         earth = earth_radius.from_grib_keys(groups.scan.earth)
+        raw_names = groups.names
         if groups.scan.damaged:
             damaged = (
-                f"{groups.scan.decoded} GRIB message(s) decoded, {groups.scan.failed} could not be "
+                f"{groups.scan.decoded} GRIB field(s) decoded, {groups.scan.failed} message(s) could not be "
                 f"({groups.scan.problem}); readable: {groups.scan.summary() or 'nothing'}"
             )
             if not allow_damaged:
@@ -164,14 +201,16 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks) -> xr.Datase
         single = [std]
         grid_relative = None  # NetCDF: declared by each wind's standard_name
         earth = earth_radius.from_netcdf(raw)
-    raw_names = sorted({n for part in upper + single for n in part.data_vars})
+        raw_names = sorted(std.data_vars)
     found, raw_vars = {}, {}
     for role_name in wanted:
         role = ROLES[role_name]
         var = _find_role(role, upper if role.on_levels else single, overrides, path)
         if var is not None:
             raw_vars[role_name] = var
-            found[role_name] = _to_canonical(var, role, path)
+    raw_vars = _only_levels(raw_vars, levels)
+    for role_name, var in raw_vars.items():
+        found[role_name] = _to_canonical(var, ROLES[role_name], path)
     for role_name, name in overrides.items():
         if role_name in wanted and role_name not in found:
             raise VariableNotFoundError(role_name, str(path), raw_names,

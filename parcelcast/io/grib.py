@@ -1,53 +1,64 @@
 """GRIB (editions 1 and 2) through cfgrib/eccodes, without touching the user's folder.
 
-cfgrib splits a file into groups of fields that share a level type and level
-set; we open them all (``cfgrib.open_datasets``) and keep the isobaric groups
-(upper-air fields) and the single-level groups (surface, 2 m) apart.  Index
-files go to our own cache folder, never next to the input.
-
-A damaged file may open in part without complaint; :func:`scan_messages`
-walks the file with eccodes and reports what could not be decoded.
+A first walk over the message headers (:func:`scan_messages`) lists every field and
+notices damaged messages (a damaged file may otherwise open in part without complaint).
+cfgrib then opens only the fields the caller's roles can use (``filter_by_keys`` on
+level type and short name), keeping the isobaric groups (upper-air fields) and the
+single-level groups (surface, 2 m) apart.  Index files go to our own cache folder,
+never next to the input.
 """
 
 from __future__ import annotations
 
+import glob
 import hashlib
+import json
 import logging
-import os
+import mmap
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import asdict, dataclass, field, fields
 from pathlib import Path
 
+from parcelcast.cache import cache_folder, check_private_file, make_private, prune
 from parcelcast.errors import InputFileError
+
+LOGGER = logging.getLogger(__name__)
 
 _LEVEL_TYPES_UPPER = ("isobaricInhPa", "isobaricInPa")
 _LEVEL_TYPES_SINGLE = ("surface", "heightAboveGround")
+#: names the scan records (with typeOfLevel and level); cfgrib names variables by cfVarName
+#: and sets standard_name from cfName, so these are what role recognition can match
+_NAME_KEYS = ("shortName", "cfVarName", "cfName")
 
 
-def index_cache_dir() -> Path:
-    """Folder for cfgrib index files (``PARCELCAST_CACHE`` or ``~/.cache/parcelcast``)."""
-    root = os.environ.get("PARCELCAST_CACHE") or Path.home() / ".cache" / "parcelcast"
-    path = Path(root) / "grib-index"
-    path.mkdir(parents=True, exist_ok=True)
-    return path
+def _file_key(path: Path) -> str:
+    """Name of the cache entries of one version of a file (path, size, modification time)."""
+    info = path.stat()
+    key = f"{path.resolve()}|{info.st_size}|{info.st_mtime_ns}".encode()
+    return f"{path.name}.{hashlib.sha1(key).hexdigest()[:16]}"
 
 
 def _index_path(path: Path) -> str:
-    stat = path.stat()
-    key = f"{path.resolve()}|{stat.st_size}|{stat.st_mtime_ns}".encode()
-    digest = hashlib.sha1(key).hexdigest()[:16]
-    # cfgrib fills {short_hash} with a hash of the filter keys.
-    return str(index_cache_dir() / f"{path.name}.{digest}.{{short_hash}}.idx")
+    """cfgrib's index file for ``path`` in our private cache; existing ones are checked first
+    (cfgrib unpickles them, see ``parcelcast/cache.py``)."""
+    folder = cache_folder("grib-index")
+    stem = _file_key(path)
+    for existing in folder.glob(f"{glob.escape(stem)}.*.idx"):
+        check_private_file(existing)
+    # cfgrib fills {short_hash} with a hash of the index keys.
+    return str(folder / f"{stem}.{{short_hash}}.idx")
 
 
 @dataclass
 class GribScan:
-    """What a walk through a GRIB file found: decoded fields and undecodable messages."""
+    """What a walk through a GRIB file found: decoded fields and undecodable messages.
+
+    ``decoded`` counts fields (a GRIB 2 message may hold several), ``failed`` messages."""
 
     decoded: int = 0
     failed: int = 0
     problem: str = ""
-    fields: list[str] = field(default_factory=list)
+    messages: list[dict] = field(default_factory=list)  # keys of each decoded field
     grid: dict = field(default_factory=dict)  # projection keys of the first projected message
     wind_flags: set = field(default_factory=set)  # u/v relative to the grid? one per message
     earth: dict = field(default_factory=dict)  # shape of the Earth keys of the first message
@@ -68,9 +79,9 @@ class GribScan:
     def summary(self, limit: int = 12) -> str:
         """Readable fields grouped by name and level type, e.g. ``t@isobaricInhPa: 500``."""
         groups: dict[str, list[str]] = {}
-        for item in self.fields:
-            name, level = item.rsplit(":", 1)
-            groups.setdefault(name, []).append(level)
+        for keys in self.messages:
+            name = f"{keys['shortName']}@{keys['typeOfLevel']}"
+            groups.setdefault(name, []).append(str(keys["level"]))
         parts = [f"{name} ({', '.join(levels)})" for name, levels in groups.items()]
         more = f" and {len(parts) - limit} more" if len(parts) > limit else ""
         return "; ".join(parts[:limit]) + more
@@ -149,46 +160,132 @@ def _load_proj_first() -> None:
     import pyproj  # noqa: F401
 
 
+def cached_scan(path: Path) -> GribScan:
+    """:func:`scan_messages`, kept in the cache (JSON) for each version of the file."""
+    entry = cache_folder("grib-scan") / f"{_file_key(path)}.json"
+    check_private_file(entry)
+    try:
+        keys = json.loads(entry.read_text())
+        if set(keys) != {item.name for item in fields(GribScan)}:
+            raise KeyError("written by another version of parcelcast")
+        keys["wind_flags"] = set(keys["wind_flags"])
+        scan = GribScan(**keys)
+        LOGGER.debug(f"{path}: message scan taken from the cache ({entry})")
+        return scan
+    except (OSError, ValueError, TypeError, KeyError):
+        pass  # not scanned yet, or an entry of another version of parcelcast (other keys)
+    scan = scan_messages(path)
+    record = asdict(scan)
+    record["wind_flags"] = sorted(record["wind_flags"])
+    temporary = entry.with_name(entry.name + ".part")
+    temporary.write_text(json.dumps(record))
+    make_private(temporary)
+    temporary.replace(entry)
+    return scan
+
+
 def scan_messages(path: Path) -> GribScan:
-    """Walk the file message by message, decoding each with eccodes.
+    """Walk the file message by message, reading the headers of each with eccodes.
 
     A message whose stated length runs past the end of the file, lacks its
-    ``7777`` end marker, or does not decode counts as failed; the walk then
-    resumes at the next ``GRIB`` marker so later intact messages are still seen.
+    ``7777`` end marker, or whose headers do not decode counts as failed; the walk
+    then resumes at the next ``GRIB`` marker so later intact messages are still seen.
+    The file is memory-mapped and only headers are decoded, so the cost follows the
+    file's length and the memory stays small whatever its size.
     """
     import eccodes
 
     scan = GribScan()
-    data = path.read_bytes()
-    offset = data.find(b"GRIB")
-    while offset >= 0:
-        length = _message_length(data, offset)
-        message = data[offset:offset + length] if length else b""
-        ok = length > 0 and offset + length <= len(data) and message.endswith(b"7777")
-        if ok:
-            try:
-                gid = eccodes.codes_new_from_message(message)
-                try:
-                    name = eccodes.codes_get(gid, "shortName")
-                    ltype = eccodes.codes_get(gid, "typeOfLevel")
-                    level = eccodes.codes_get(gid, "level")
-                    _note_projection(gid, name, scan)
-                finally:
-                    eccodes.codes_release(gid)
-                scan.fields.append(f"{name}@{ltype}:{level}")
-                scan.decoded += 1
-                offset = data.find(b"GRIB", offset + length)
-                continue
-            except Exception as exc:  # eccodes raises its own error classes
-                scan.problem = scan.problem or f"message at byte {offset}: {exc}"
-        else:
-            scan.problem = scan.problem or (
-                f"message at byte {offset} is truncated or malformed "
-                f"(stated length {length}, file size {len(data)})"
-            )
-        scan.failed += 1
-        offset = data.find(b"GRIB", offset + 4)
+    names_of_parameter: dict = {}
+    with open(path, "rb") as handle:
+        if path.stat().st_size == 0:
+            return scan
+        with mmap.mmap(handle.fileno(), 0, access=mmap.ACCESS_READ) as data:
+            offset = data.find(b"GRIB")
+            while offset >= 0:
+                length = _message_length(data, offset)
+                ok = (length > 16 and offset + length <= len(data)
+                      and data[offset + length - 4:offset + length] == b"7777")
+                if ok:
+                    try:
+                        for gid in _fields_of_message(handle, offset,
+                                                      _field_count(data, offset, length)):
+                            try:
+                                scan.messages.append(_message_keys(gid, names_of_parameter))
+                                _note_projection(gid, scan.messages[-1]["shortName"], scan)
+                            finally:
+                                eccodes.codes_release(gid)
+                            scan.decoded += 1
+                        offset = data.find(b"GRIB", offset + length)
+                        continue
+                    except Exception as exc:  # eccodes raises its own error classes
+                        scan.problem = scan.problem or f"message at byte {offset}: {exc}"
+                else:
+                    scan.problem = scan.problem or (
+                        f"message at byte {offset} is truncated or malformed "
+                        f"(stated length {length}, file size {len(data)})"
+                    )
+                scan.failed += 1
+                offset = data.find(b"GRIB", offset + 4)
     return scan
+
+
+def _field_count(data, offset: int, length: int) -> int:
+    """Number of fields in the GRIB message at ``offset``: 1 in edition 1; in edition 2 the
+    number of data sections (section 7), read from the section headers (length, number)."""
+    if data[offset + 7] != 2:
+        return 1
+    position, end, count = offset + 16, offset + length - 4, 0
+    while position + 5 <= end:
+        section_length = int.from_bytes(data[position:position + 4], "big")
+        if section_length < 5:
+            break
+        count += data[position + 4] == 7
+        position += section_length
+    if position != end or count == 0:
+        raise ValueError("its sections do not add up to the stated length, or it has no data section")
+    return count
+
+
+def _fields_of_message(handle, offset: int, count: int):
+    """eccodes handles (headers only) of the ``count`` fields of the message at ``offset``.
+
+    A GRIB 2 message may carry several fields (NCEP packs u and v together); eccodes'
+    multi-field mode returns them one by one.
+    """
+    import eccodes
+
+    handle.seek(offset)
+    if count > 1:
+        eccodes.codes_grib_multi_support_on()
+        eccodes.codes_grib_multi_support_reset_file(handle)
+    try:
+        for _ in range(count):
+            gid = eccodes.codes_grib_new_from_file(handle, headers_only=True)
+            if gid is not None and eccodes.codes_get(gid, "offset") != offset:
+                eccodes.codes_release(gid)
+                gid = None
+            if gid is None:
+                raise ValueError("eccodes did not read the fields its sections announce")
+            yield gid
+    finally:
+        if count > 1:
+            eccodes.codes_grib_multi_support_off()  # cfgrib's random access needs it off
+
+
+def _message_keys(gid, names_of_parameter: dict) -> dict:
+    """The keys by which a message is recognised (names, level type, level).
+
+    The names (``shortName``, ``cfName``, ``cfVarName``) are eccodes concepts defined per
+    parameter, like ``paramId``; each takes about a millisecond to evaluate, so they are
+    looked up once per parameter (``names_of_parameter``: paramId -> names)."""
+    import eccodes
+
+    parameter = eccodes.codes_get(gid, "paramId")
+    if parameter not in names_of_parameter:
+        names_of_parameter[parameter] = {key: eccodes.codes_get(gid, key) for key in _NAME_KEYS}
+    return {**names_of_parameter[parameter], "typeOfLevel": eccodes.codes_get(gid, "typeOfLevel"),
+            "level": eccodes.codes_get(gid, "level")}
 
 
 @dataclass
@@ -198,35 +295,82 @@ class GribGroups:
     upper: list  # list[xarray.Dataset]
     single: list  # list[xarray.Dataset]
     scan: GribScan
+    names: list[str]  # variable names of every upper-air and single-level field in the file
 
     def crs(self):
         """The projection of the file's grid (``pyproj.CRS``), or None for lat-lon grids."""
         return projection_crs(self.scan.grid) if self.scan.grid else None
 
 
-def open_grib(path: Path) -> GribGroups:
-    """Open every field group of a GRIB file; raise InputFileError if nothing decodes."""
+def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
+    """Open the field groups of a GRIB file that can hold ``roles``; raise InputFileError
+    if nothing decodes.
+
+    Only messages whose names could match a wanted role (``io/roles.py``: CF standard
+    name, GRIB short name, common name, or the ``--var`` override) at a fitting level
+    type are handed to cfgrib, through ``filter_by_keys``: the cost follows the fields
+    used, not the number of field groups in the file.
+    """
     _load_proj_first()
     import cfgrib
 
-    scan = scan_messages(path)
+    scan = cached_scan(path)
     if scan.decoded == 0:
         raise InputFileError(path, f"no GRIB message could be decoded ({scan.problem or 'empty file'})")
-    logging.getLogger("cfgrib").setLevel(logging.CRITICAL)
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
-            # reads only those, and otherwise writes its index next to the input.
-            groups = cfgrib.open_datasets(str(path), backend_kwargs={"indexpath": _index_path(path)},
-                                          cache_geo_coords=True)
-    except Exception as exc:
-        raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
-    upper, single = [], []
-    for group in groups:
-        level_types = {v.attrs.get("GRIB_typeOfLevel") for v in group.data_vars.values()}
-        if level_types & set(_LEVEL_TYPES_UPPER):
-            upper.append(group)
-        elif level_types & set(_LEVEL_TYPES_SINGLE):
-            single.append(group)
-    return GribGroups(upper=upper, single=single, scan=scan)
+    backend = {"indexpath": _index_path(path)}
+    parts = {}
+    for part, filter_by_keys in grib_filters(scan, roles, overrides).items():
+        LOGGER.debug(f"{path}: opening the {part} fields {filter_by_keys}")
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore")
+                # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
+                # reads only those, and otherwise writes its index next to the input.
+                parts[part] = cfgrib.open_datasets(
+                    str(path), backend_kwargs={**backend, "filter_by_keys": filter_by_keys},
+                    cache_geo_coords=True)
+        except Exception as exc:
+            raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
+    for written in Path(backend["indexpath"]).parent.glob(f"{glob.escape(_file_key(path))}.*.idx"):
+        make_private(written)  # cfgrib writes with the umask's permissions
+    for folder in ("grib-index", "grib-scan"):
+        prune(cache_folder(folder))
+    names = sorted({m["cfVarName"] for m in scan.messages
+                    if m["typeOfLevel"] in _LEVEL_TYPES_UPPER + _LEVEL_TYPES_SINGLE})
+    return GribGroups(upper=parts.get("upper", []), single=parts.get("single", []), scan=scan,
+                      names=names)
+
+
+def grib_filters(scan: GribScan, roles=None, overrides=None) -> dict[str, dict]:
+    """cfgrib ``filter_by_keys`` for the upper-air and single-level parts (absent: none wanted).
+
+    A message is wanted if its level type suits a wanted role (isobaric for roles on
+    levels, surface or height above ground for the others) and one of its names would
+    match that role in ``io/analysis.py``'s recognition.
+    """
+    from parcelcast.io.roles import ROLES
+
+    overrides = overrides or {}
+    wanted = [ROLES[name] for name in (roles if roles is not None else ROLES)]
+    chosen: dict[str, tuple[set, set]] = {}
+    for keys in scan.messages:
+        level_type = keys["typeOfLevel"]
+        part = ("upper" if level_type in _LEVEL_TYPES_UPPER
+                else "single" if level_type in _LEVEL_TYPES_SINGLE else None)
+        if part is None:
+            continue
+        for role in wanted:
+            if role.on_levels != (part == "upper"):
+                continue
+            if role.name in overrides:
+                match = overrides[role.name] == keys["cfVarName"]
+            else:
+                match = (keys["cfName"] in role.standard_names
+                         or keys["shortName"] in role.grib_short_names
+                         or keys["cfVarName"].lower() in role.common_names)
+            if match:
+                types, names = chosen.setdefault(part, (set(), set()))
+                types.add(level_type)
+                names.add(keys["shortName"])
+    return {part: {"typeOfLevel": sorted(types), "shortName": sorted(names)}
+            for part, (types, names) in chosen.items()}
