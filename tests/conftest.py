@@ -22,3 +22,14 @@ def shared_data() -> Path:
     if not folder.is_dir():
         pytest.skip(f"real-data folder {folder} not found (set PARCELCAST_DATA to it)")
     return folder
+
+
+@pytest.fixture(scope="session", autouse=True)
+def _maps_from_packaged_shapes(tmp_path_factory):
+    """Cartopy finds no cached downloads: maps must draw from the Natural Earth shapes in the
+    package (``parcelcast/data/natural_earth``); a download attempt is an error (pyproject
+    ``filterwarnings``: ``cartopy.io.DownloadWarning``)."""
+    import cartopy
+
+    cartopy.config["data_dir"] = tmp_path_factory.mktemp("cartopy-downloads-not-allowed")
+    yield

@@ -1,0 +1,63 @@
+"""Coastlines and land borders drawn offline from the Natural Earth shapes shipped with the package.
+
+What belongs here: pointing cartopy at the packaged shapes (``parcelcast/data/natural_earth``,
+in cartopy's own folder layout), choosing the scale for a map area, and drawing the
+geography on a map.  Natural Earth is public domain ("Made with Natural Earth. Free vector and
+raster map data @ naturalearthdata.com"); 1:110m and 1:50m coastlines and land borders between
+countries are shipped.  Nothing is ever downloaded: :func:`use_packaged_shapes` sets cartopy's
+``pre_existing_data_dir`` before any drawing (tests turn cartopy's ``DownloadWarning`` into an
+error, so a download attempt fails them).
+"""
+
+from __future__ import annotations
+
+from importlib import resources
+from pathlib import Path
+
+#: the shipped data set, as named in figure metadata (JSON ``figures[].coastlines``)
+SOURCE_NAME = "Natural Earth {scale} coastlines and land borders (public domain)"
+#: map areas spanning fewer degrees of latitude than this use the finer 1:50m shapes
+FINE_SCALE_SPAN_DEG = 40.0
+
+
+def data_folder() -> Path:
+    """The folder holding ``shapefiles/natural_earth/{physical,cultural}/`` inside the package."""
+    return Path(str(resources.files("parcelcast") / "data" / "natural_earth"))
+
+
+def use_packaged_shapes() -> Path:
+    """Point cartopy at the packaged shapes (``cartopy.config["pre_existing_data_dir"]``)."""
+    import cartopy
+
+    folder = data_folder()
+    cartopy.config["pre_existing_data_dir"] = folder
+    return folder
+
+
+def scale_for(area) -> str:
+    """``"50m"`` for a regional area ``[lat_min, lat_max, lon_min, lon_max]``, else ``"110m"``."""
+    if area is None:
+        return "110m"
+    lat_span = abs(area[1] - area[0])
+    lon_span = abs(area[3] - area[2])
+    return "50m" if max(lat_span, lon_span / 1.5) <= FINE_SCALE_SPAN_DEG else "110m"
+
+
+def draw_geography(ax, area=None) -> str:
+    """Draw coastlines and land borders on a cartopy ``GeoAxes``; returns the data set's name.
+
+    Parameters
+    ----------
+    ax : cartopy.mpl.geoaxes.GeoAxes
+    area : sequence of 4 floats, optional
+        ``[lat_min, lat_max, lon_min, lon_max]`` in degrees; sets the scale (1:50m for a
+        regional map, 1:110m for a continental or global one).
+    """
+    import cartopy.feature as cfeature
+
+    use_packaged_shapes()
+    scale = scale_for(area)
+    ax.coastlines(resolution=scale, linewidth=0.9, color="black", zorder=3)
+    ax.add_feature(cfeature.BORDERS.with_scale(scale), linewidth=0.6, edgecolor="#3d3d3d",
+                   linestyle=(0, (4, 2)), zorder=3)
+    return SOURCE_NAME.format(scale="1:" + scale)
