@@ -15,6 +15,7 @@ import sys
 
 #: command name -> (module, one-line help)
 COMMANDS: dict[str, tuple[str, str]] = {
+    "brief": ("parcelcast.cli.brief", "the morning briefing from a config file (HTML, Markdown, JSON)"),
     "advect": ("parcelcast.cli.advect", "horizontal advection (-V.grad T) on a level, map or point"),
     "track": ("parcelcast.cli.track", "back or forward air-parcel trajectories"),
     "profile": ("parcelcast.cli.profile", "analyse a vertical profile (CSV or analysis column)"),

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 
+from parcelcast.cli._area import add_area_argument
 from parcelcast.constants import SECONDS_PER_HOUR
 from parcelcast.cli._common import (
     add_input_arguments,
@@ -32,6 +33,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--json", action="store_true", help="print JSON instead of text")
     parser.add_argument("--out", metavar="PATH.nc", help="write the fields to CF NetCDF")
     parser.add_argument("--map", metavar="PATH.png", help="draw a map to PNG")
+    add_area_argument(parser)
 
 
 def run(args) -> int:
@@ -59,7 +61,7 @@ def run(args) -> int:
     if args.map:
         from parcelcast.render.maps import advection_map
 
-        advection_map(member_mean(fields), args.map, station=args.at)
+        advection_map(member_mean(fields), args.map, station=args.at, area=args.area)
     if args.json:
         print_json(summary)
     else:

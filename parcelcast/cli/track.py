@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
+from parcelcast.cli._area import add_area_argument
 from parcelcast.cli._common import add_input_arguments, lat_lon, print_json, utc_time
 
 
@@ -64,6 +65,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--ground", choices=("follow", "stop"), default="follow",
                         help="parcels meeting the ground follow it (flagged) or stop there")
     parser.add_argument("--json", action="store_true", help="print the JSON summary")
+    parser.add_argument("--map", metavar="PATH.png",
+                        help="draw the trajectories on a map (coastlines, 6-hourly marks, "
+                        "colour by pressure)")
+    add_area_argument(parser)
     parser.add_argument("--out", metavar="PATH",
                         help="write all trajectories; format from the suffix: .nc (CF DSG), "
                         ".csv (tidy table), .geojson (one LineString per member)")
@@ -102,6 +107,15 @@ def run(args) -> int:
     _refuse_below_ground(out, args)
     if args.out:
         write_trajectories(out, args.out)
+    if args.map:
+        from pathlib import Path
+
+        from parcelcast.render.trajectory_maps import trajectory_map
+
+        trajectory_map(out, args.map, station=("arrival" if hours < 0 else "release", lat, lon), area=args.area,
+                       title=f"{'Back' if hours < 0 else 'Forward'} trajectories at {args.level:g} hPa "
+                       f"({args.mode}, {args.wind} wind)",
+                       source=", ".join(Path(f).name for f in args.files))
     summary = to_json_dict(out, DISCLAIMER)
     _add_completeness(summary, out)
     if summary["incomplete"]:

@@ -1,8 +1,8 @@
 """Figures of a case review: the split timeline, the split maps and the trajectories.
 
-Plain matplotlib (Agg) on longitude-latitude axes; every number comes from
-:func:`parcelcast.review.build_review`.  Each function takes ``ax=None`` or a
-figure path and returns what it drew.
+Matplotlib (Agg); the maps carry coastlines and borders (packaged Natural Earth shapes).
+Every number comes from :func:`parcelcast.review.build_review`.  Each function takes a
+figure path (and the timeline ``ax=None``) and returns what it drew.
 """
 
 from __future__ import annotations
@@ -10,6 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast.io.atomic import atomic_path
+from parcelcast.render.maps import MISSING_GREY
 
 _COLOURS = {"observed_change_K": "#222222", "advective_K": "#c0392b", "vertical_K": "#2e86c1",
             "residual_K": "#27ae60"}
@@ -62,69 +63,64 @@ _PANEL_TITLES = {"observed_change": "observed change", "advective": "advective p
                  "vertical": "vertical-motion part", "residual": "residual"}
 
 
+def review_area(case) -> list[float]:
+    """The map area of a review: 50 degrees of latitude by 70 of longitude around the station."""
+    return [max(-90.0, case.lat - 25.0), min(90.0, case.lat + 25.0), case.lon - 35.0, case.lon + 35.0]
+
+
 def split_maps_figure(review: dict, path=None):
     """Maps of the observed change and its parts over the window (K), on one colour scale
-    so the panels compare directly (member mean where the analysis has members)."""
+    so the panels compare directly (member mean where the analysis has members), with
+    coastlines and borders; grey where a part is missing."""
+    import cartopy.crs as ccrs
+
+    from parcelcast.render.maps import (ADVECTION_CMAP, crop, finish_map, inside, mark_station,
+                                        projection_for)
+    from parcelcast import formatting
     from parcelcast.selection import member_mean
 
     plt = _pyplot()
-    fields = review["fields"]
     case = review["case"]
+    area = review_area(case)
+    fields = crop(review["fields"], area)
     names = [n for n in _PANEL_TITLES if n in fields]
     lat, lon = fields["lat"].values, fields["lon"].values
-    lon = case.lon + (((lon - case.lon + 180.0) % 360.0) - 180.0)  # continuous around the station
-    columns = slice(None)
-    if lat.ndim == 1:  # lat-lon grid (projected grids carry 2-D coordinates already)
-        columns = np.argsort(lon, kind="stable")  # keep longitudes increasing across the cut
-        lat, lon = np.meshgrid(lat, lon[columns], indexing="ij")
-    near = (np.abs(lat - case.lat) <= 25) & (np.abs(lon - case.lon) <= 35)
-    panels = {name: np.where(near, member_mean(fields[name]).values[..., columns], np.nan)
-              for name in names}
-    finite = np.abs(np.concatenate([v[np.isfinite(v)] for v in panels.values()]))
+    panels = {name: member_mean(fields[name]).values for name in names}
+    shown = np.concatenate([inside(fields, area, v).ravel() for v in panels.values()])
+    finite = np.abs(shown[np.isfinite(shown)])
     limit = max(float(np.percentile(finite, 98)) if finite.size else 1.0, 0.5)
-    fig, axes = plt.subplots(1, len(names), figsize=(3.9 * len(names), 3.8), squeeze=False,
-                             constrained_layout=True)
+    fig = plt.figure(figsize=(4.2 * len(names), 4.4), constrained_layout=True)
     drawn = {}
-    for ax, name in zip(axes[0], names):
-        drawn[name] = ax.pcolormesh(lon, lat, panels[name], cmap="RdBu_r", vmin=-limit, vmax=limit,
-                                    shading="auto")
-        ax.plot(case.lon, case.lat, marker="*", color="gold", markeredgecolor="black", markersize=12)
-        ax.set_xlim(case.lon - 35, case.lon + 35)
-        ax.set_ylim(max(-90, case.lat - 25), min(90, case.lat + 25))
-        ax.set_aspect(1.0 / max(np.cos(np.deg2rad(case.lat)), 0.2))
+    coastlines = None
+    for i, name in enumerate(names):
+        ax = fig.add_subplot(1, len(names), i + 1, projection=projection_for(area))
+        ax.set_extent([area[2], area[3], area[0], area[1]], crs=ccrs.PlateCarree())
+        ax.set_facecolor(MISSING_GREY)
+        drawn[name] = ax.pcolormesh(lon, lat, np.ma.masked_invalid(panels[name]), cmap=ADVECTION_CMAP,
+                                    vmin=-limit, vmax=limit, shading="auto",
+                                    transform=ccrs.PlateCarree())
+        coastlines = finish_map(ax, area)
+        mark_station(ax, (case.station_name, case.lat, case.lon), named=False)
         ax.set_title(_PANEL_TITLES[name], fontsize=9)
-    fig.colorbar(drawn[names[0]], ax=axes[0].tolist(), shrink=0.8, label="K over the window")
-    fig.suptitle(f"Split over {str(case.start)[:16]} to {str(case.end)[:16]} UTC at "
-                 f"{case.level_hpa:g} hPa (guidance, not an official forecast)", fontsize=10)
+    fig.colorbar(drawn[names[0]], ax=fig.axes, shrink=0.8, orientation="horizontal", aspect=50,
+                 label="K over the window: red warming, blue cooling; grey: missing")
+    fig.suptitle(f"{case.station_name} (star), {case.level_hpa:g} hPa: split over "
+                 f"{formatting.time_text(case.start)} to {formatting.time_text(case.end)}\n"
+                 "guidance, not an official forecast", fontsize=10)
     if path is not None:
         _save(fig, path)
-    return drawn
+    return {"panels": drawn, "area": area, "coastlines": coastlines}
 
 
-def trajectories_figure(review: dict, path=None, ax=None):
-    """Back trajectories arriving at the station at the key times (the cloud in thin lines)."""
-    plt = _pyplot()
-    fig = None
-    if ax is None:
-        fig, ax = plt.subplots(figsize=(7, 5))
+def trajectories_figure(review: dict, path=None):
+    """Back trajectories arriving at the station at the key times, on a map with geography,
+    6-hourly marks, colour by pressure (see :func:`parcelcast.render.trajectory_maps.trajectory_map`)."""
+    from parcelcast import formatting
+    from parcelcast.render.trajectory_maps import trajectory_map
+
     case = review["case"]
-    drawn = []
-    colours = ["#8e44ad", "#d35400", "#16a085"]
-    for colour, (when, paths) in zip(colours, review["trajectories"].items()):
-        for i in range(paths.sizes["trajectory"]):
-            lon = np.unwrap(np.deg2rad(paths["lon"].values[i]), discont=np.pi)
-            central = bool(paths["central"].values[i])
-            (line,) = ax.plot(np.rad2deg(lon), paths["lat"].values[i], color=colour,
-                              linewidth=2.0 if central else 0.5, alpha=1.0 if central else 0.5,
-                              label=f"arriving {str(when)[:16]} UTC" if central and i == 0 else None)
-            drawn.append(line)
-    ax.plot(case.lon, case.lat, marker="*", color="gold", markeredgecolor="black", markersize=14)
-    ax.set_xlabel("longitude (\u00b0E)")
-    ax.set_ylabel("latitude (\u00b0N)")
-    ax.set_aspect(1.0 / max(np.cos(np.deg2rad(case.lat)), 0.2))
-    ax.grid(linestyle=":", color="0.7")
-    ax.legend(fontsize=8)
-    ax.set_title(f"Back trajectories to {case.station_name} at {case.level_hpa:g} hPa", fontsize=10)
-    if path is not None:
-        _save(ax.figure if fig is None else fig, path)
-    return drawn
+    groups = [(f"arriving {formatting.time_text(when)}", paths)
+              for when, paths in review["trajectories"].items()]
+    return trajectory_map(groups, path, station=(case.station_name, case.lat, case.lon),
+                          title=f"Back trajectories to {case.station_name} at {case.level_hpa:g} hPa "
+                          f"({case.wind} wind)")

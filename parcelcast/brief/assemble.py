@@ -1,0 +1,351 @@
+"""Everything the morning briefing says, computed by the library from one opened analysis.
+
+What belongs here: :func:`assemble_brief`, which opens the analyses once and gathers the
+station's values at each level (the same numbers as ``parcelcast advect --at``), the back
+trajectory (as ``parcelcast track``), the trend split over the trajectory window (as
+``parcelcast split``) and the profile at the station (as ``parcelcast profile --at``),
+each with ``available: false`` and a reason when the data do not allow it.  No drawing
+and no writing here (see :mod:`parcelcast.brief.write`); the sentences of the summary
+come from :mod:`parcelcast.brief.sentences`.
+
+Values are SI or named with their unit in the key (``temperature_degC``, ``wind_speed_kt``,
+``advection_K_per_h``).  Missing values stay None.
+"""
+
+from __future__ import annotations
+
+import warnings
+
+import numpy as np
+
+from parcelcast import formatting
+from parcelcast.brief.config import BriefConfig
+from parcelcast.errors import ParcelcastError, ParcelcastWarning
+
+#: roles the briefing reads (those absent from the files are simply not there)
+ROLES = ("temperature", "u", "v", "geopotential", "omega", "relative_humidity",
+         "specific_humidity", "surface_pressure", "near_surface_temperature")
+
+
+def _number(value, digits: int = 4):
+    """A rounded float, or None for missing (NaN stays missing)."""
+    if value is None:
+        return None
+    value = float(value)
+    return round(value, digits) if np.isfinite(value) else None
+
+
+def assemble_brief(config: BriefConfig, ds=None) -> dict:
+    """The briefing's content (a dict; keys starting with ``_`` hold arrays for the figures).
+
+    Parameters
+    ----------
+    config : BriefConfig
+    ds : xarray.Dataset, optional
+        An already opened canonical analysis (default: open ``config.analyses`` once).
+    """
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.io.analysis import open_analysis
+    from parcelcast.selection import select_time
+
+    caught: list[str] = []
+    with warnings.catch_warnings(record=True) as records:
+        warnings.simplefilter("always", ParcelcastWarning)
+        if ds is None:
+            roles = [r for r in ROLES if not (config.wind == "geostrophic" and r in ("u", "v"))]
+            ds = open_analysis(config.analyses, roles=roles)
+        valid_time = select_time(ds[["temperature"]], config.time)["time"].values
+        brief = {
+            "title": f"Morning briefing for {config.station_name}",
+            "station": {"name": config.station_name, "lat": config.lat, "lon": config.lon},
+            "valid_time": valid_time,
+            "wind": config.wind,
+            "area": config.map_area(),
+            "source_files": ds.attrs.get("source_files", "").split(";"),
+            "analysis_times": [t for t in ds["time"].values],
+            "members_in_analysis": int(ds.sizes.get("member", 1)),
+            "levels": [level_entry(ds, config, level, valid_time) for level in config.levels_hpa],
+        }
+        brief["trajectories"] = trajectory_entry(ds, config, valid_time)
+        brief["split"] = split_entry(ds, config, valid_time, brief["trajectories"])
+        brief["profile"] = profile_entry(ds, config, valid_time)
+        caught = [str(r.message) for r in records if issubclass(r.category, ParcelcastWarning)]
+    brief["warnings"] = _unique(caught + _missing_warnings(brief))
+    brief["cautions"] = cautions(ds, config, brief)
+    from parcelcast.brief.sentences import summary_sentences
+
+    brief["summary"] = summary_sentences(brief)
+    brief["disclaimer"] = DISCLAIMER
+    return brief
+
+
+def _unique(items: list[str]) -> list[str]:
+    return list(dict.fromkeys(items))
+
+
+# --------------------------------------------------------------------------- levels
+def level_entry(ds, config: BriefConfig, level_hpa: float, valid_time) -> dict:
+    """The station's values on one level: the numbers of ``advect --at`` (member means),
+    with temperature in degC and wind as direction and speed in knots."""
+    from parcelcast.advection import advection_on_level
+    from parcelcast.sampling import value_at
+    from parcelcast.selection import member_mean
+
+    try:
+        fields = advection_on_level(ds, level_hpa, valid_time, config.wind)
+    except ParcelcastError as exc:
+        return {"level_hPa": level_hpa, "available": False, "reason": str(exc)}
+    at = value_at(fields, config.lat, config.lon)
+    temperature = _number(member_mean(at["temperature"]), 3)
+    u = _number(member_mean(at["u"]), 3)
+    v = _number(member_mean(at["v"]), 3)
+    adv = at["temperature_advection"] * 3600.0
+    entry = {
+        "level_hPa": level_hpa,
+        "available": True,
+        "temperature_K": temperature,
+        "temperature_degC": _number(formatting.celsius(temperature), 2),
+        "u_m_s": u,
+        "v_m_s": v,
+        "wind_direction_deg": _number(formatting.wind_direction(u, v), 1) if None not in (u, v) else None,
+        "wind_speed_kt": _number(formatting.knots(np.hypot(u, v)), 1) if None not in (u, v) else None,
+        "advection_K_per_h": _number(member_mean(adv), 4),
+        "missing_points_in_field": int(fields.attrs["missing_points"]),
+        "_fields": member_mean(fields),
+    }
+    if "member" in adv.dims:
+        entry["advection_spread_K_per_h"] = _number(adv.std("member", skipna=False), 4)
+    return entry
+
+
+# --------------------------------------------------------------------------- trajectories
+def _window_reason(ds, valid_time, hours: float, what: str) -> str | None:
+    """Why ``what`` over ``hours`` before ``valid_time`` cannot be computed, or None."""
+    times = ds["time"].values
+    if times.size < 2:
+        return (f"one analysis time only ({formatting.time_text(times[0])}): {what} needs analyses "
+                f"spanning the {hours:g} h before the valid time")
+    start = np.datetime64(valid_time, "ns") - np.timedelta64(int(round(hours * 3600)), "s")
+    if start < times[0]:
+        have = (np.datetime64(valid_time, "ns") - times[0]) / np.timedelta64(1, "h")
+        return (f"the analyses start at {formatting.time_text(times[0])}, only {have:g} h before "
+                f"the valid time; {what} needs {hours:g} h")
+    return None
+
+
+def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
+    """Back trajectories arriving at the station at the valid time, on the first level."""
+    from parcelcast.sampling import great_circle_km
+    from parcelcast.trajectories import compute_trajectories
+    from parcelcast.units import Q_
+
+    level = config.levels_hpa[0]
+    entry = {"available": False, "hours": config.trajectory_hours, "level_hPa": level,
+             "origin_lat": None, "origin_lon": None, "origin_pressure_hPa": None, "complete": False}
+    reason = _window_reason(ds, valid_time, config.trajectory_hours, "a back trajectory")
+    if reason is not None:
+        entry["reason"] = reason
+        return entry
+    try:
+        paths = compute_trajectories(
+            ds, config.lat, config.lon, Q_(level, "hPa"), Q_(-config.trajectory_hours, "h"),
+            np.datetime64(valid_time, "ns"), wind=config.wind, members=config.members)
+    except ParcelcastError as exc:
+        entry["reason"] = str(exc)
+        return entry
+    central = int(np.flatnonzero(paths["central"].values)[0])
+    last = int(paths["row_size"].values[central]) - 1
+    origin_time = paths["time"].values[central, last]
+    wanted = np.datetime64(valid_time, "ns") - np.timedelta64(int(round(config.trajectory_hours * 3600)), "s")
+    statuses = paths["status_name"].values
+    full = (statuses == "ok") & (paths["time"].values[np.arange(statuses.size),
+                                                      paths["row_size"].values - 1] == wanted)
+    if "complete" in paths:  # completeness flag of the trajectory module, when it provides one
+        full = full & paths["complete"].values.astype(bool)
+    lat0, lon0 = float(paths["lat"].values[central, last]), float(paths["lon"].values[central, last])
+    t_now = paths["temperature"].values[central, 0] if "temperature" in paths else np.nan
+    t_then = paths["temperature"].values[central, last] if "temperature" in paths else np.nan
+    distance = float(great_circle_km(config.lat, config.lon, lat0, lon0))
+    entry.update({
+        "available": True,
+        "arrival_time": valid_time,
+        "origin_time": origin_time,
+        "origin_lat": _number(lat0, 3),
+        "origin_lon": _number(((lon0 + 180.0) % 360.0) - 180.0, 3),
+        "origin_pressure_hPa": _number(paths["pressure"].values[central, last] / 100.0, 2),
+        "origin_temperature_degC": _number(formatting.celsius(t_then), 2),
+        "arrival_temperature_degC": _number(formatting.celsius(t_now), 2),
+        "temperature_change_K": _number(t_now - t_then, 2),
+        "distance_km": _number(distance, 1),
+        "bearing_deg": _number(_bearing(config.lat, config.lon, lat0, lon0), 1),
+        "central_status": str(statuses[central]),
+        "complete": bool(full[central]),
+        "members": int(statuses.size),
+        "members_complete": int(full.sum()),
+        "spread_km": _number(_last_finite(paths["spread"].values[0]) / 1000.0, 1),
+        "spread_fraction": _number(_last_finite(paths["spread_fraction"].values[0]), 3),
+        "_paths": paths,
+    })
+    return entry
+
+
+def _last_finite(values) -> float:
+    finite = np.asarray(values, dtype=np.float64)
+    finite = finite[np.isfinite(finite)]
+    return float(finite[-1]) if finite.size else np.nan
+
+
+def _bearing(lat1, lon1, lat2, lon2) -> float:
+    """Initial great-circle bearing (degrees from north) from point 1 towards point 2."""
+    p1, p2 = np.deg2rad(lat1), np.deg2rad(lat2)
+    dl = np.deg2rad(lon2 - lon1)
+    x = np.sin(dl) * np.cos(p2)
+    y = np.cos(p1) * np.sin(p2) - np.sin(p1) * np.cos(p2) * np.cos(dl)
+    return float(np.mod(np.rad2deg(np.arctan2(x, y)), 360.0))
+
+
+# --------------------------------------------------------------------------- split
+def split_entry(ds, config: BriefConfig, valid_time, trajectories: dict) -> dict:
+    """The trend split at the station over the trajectory window (as ``parcelcast split``)."""
+    from parcelcast.budget import trend_split
+
+    level = config.levels_hpa[0]
+    hours = config.trajectory_hours
+    end = np.datetime64(valid_time, "ns")
+    start = end - np.timedelta64(int(round(hours * 3600)), "s")
+    entry = {"available": False, "level_hPa": level, "start": start, "end": end}
+    reason = _window_reason(ds, valid_time, hours, "the split of the change")
+    if reason is not None:
+        entry["reason"] = reason
+        return entry
+    try:
+        result = trend_split(ds, config.lat, config.lon, level, start, end, config.wind,
+                             members=config.members)
+    except ParcelcastError as exc:
+        entry["reason"] = str(exc)
+        return entry
+    euler, lagr = result["eulerian"], result["lagrangian"]
+    observed, advective = _number(euler["observed_change_K"]), _number(euler["advective_K"])
+    vertical = _number(euler["vertical_K"]) if euler["vertical_available"] else None
+    residual = None
+    if observed is not None and advective is not None:
+        residual = round(observed - advective - (vertical or 0.0), 4)  # as `split --json`
+    entry.update({
+        "available": True,
+        "observed_change_K": observed,
+        "advective_K": advective,
+        "vertical_K": vertical,
+        "vertical_available": bool(euler["vertical_available"]),
+        "residual_K": residual,
+        "residual_note": euler["residual_note"],
+        "lagrangian": {
+            "non_advective_K": _number(lagr["non_advective_K"]),
+            "advective_K": _number(lagr["advective_K"]),
+            "spread_K": _number(lagr["spread_K"]),
+            "reached_start": lagr["reached_start"],
+            "trajectories": lagr["trajectories"],
+        },
+        "advective_difference_K": _number(result["advective_difference_K"]),
+    })
+    consistency = result.get("consistency")
+    if consistency is not None:
+        entry["consistency"] = consistency
+    return entry
+
+
+# --------------------------------------------------------------------------- profile
+def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
+    """The analysis column at the station: stability, moisture and thermal-wind layers."""
+    from parcelcast.profiles import analyse, column_from_analysis
+
+    entry = {"available": False}
+    if ds.sizes.get("level", 1) < 4:
+        entry["reason"] = (f"the analyses hold {ds.sizes.get('level', 1)} pressure level(s); "
+                           "a profile needs at least 4")
+        return entry
+    if "relative_humidity" not in ds and "specific_humidity" not in ds:
+        entry["reason"] = "no humidity in the analyses: dew points, CAPE and the LCL need it"
+        return entry
+    try:
+        profile = column_from_analysis(ds, config.lat, config.lon, valid_time)
+        result = analyse(profile)
+    except ParcelcastError as exc:
+        entry["reason"] = str(exc)
+        return entry
+    g = result.get("top_temperature_guidance") or {}
+    entry.update({
+        "available": True,
+        "levels": int(profile.nlev),
+        "cape_surface_J_per_kg": _number(result["cape_J_per_kg"]["surface"], 0),
+        "cin_surface_J_per_kg": _number(result["cin_J_per_kg"]["surface"], 0),
+        "cape_most_unstable_J_per_kg": _number(result["cape_J_per_kg"]["most_unstable"], 0),
+        "lcl_hPa": _number(result["lcl_hPa"], 0),
+        "lifted_index_K": _number(result["lifted_index_K"], 1),
+        "precipitable_water_mm": _number(result["precipitable_water_mm"], 1),
+        "freezing_level_m": _number(result["freezing_level_m"], 0),
+        "top_temperature_degC": _number(formatting.celsius(g.get("temperature_K")), 1),
+        "layers": [{"bottom_hPa": _number(lay["bottom_hPa"], 0), "top_hPa": _number(lay["top_hPa"], 0),
+                    "advection_K_per_h": _number(lay["advection_K_per_h"], 3)}
+                   for lay in result.get("layers", [])],
+        "notes": list(profile.notes),
+        "_profile": profile,
+        "_result": result,
+    })
+    return entry
+
+
+# --------------------------------------------------------------------------- cautions
+def _missing_warnings(brief: dict) -> list[str]:
+    out = []
+    for lev in brief["levels"]:
+        if lev.get("available") and lev["missing_points_in_field"]:
+            out.append(f"{lev['level_hPa']:g} hPa: {lev['missing_points_in_field']} grid points have "
+                       "no advection value (below the ground, near the poles, or missing in the file); "
+                       "they are grey on the map")
+        if lev.get("available") and lev["advection_K_per_h"] is None:
+            out.append(f"{lev['level_hPa']:g} hPa: no advection value at the station (missing data "
+                       "around it)")
+        if not lev.get("available"):
+            out.append(f"{lev['level_hPa']:g} hPa: {lev['reason']}")
+    traj = brief["trajectories"]
+    if traj["available"] and not traj["complete"]:
+        out.append(f"the central back trajectory did not cover the full {traj['hours']:g} h "
+                   f"(status {traj['central_status']})")
+    return out
+
+
+def cautions(ds, config: BriefConfig, brief: dict) -> list[str]:
+    """What a forecaster should keep in mind reading these numbers (plain sentences)."""
+    out = ["The numbers come from model analyses or forecasts, not from observations at the station."]
+    if config.wind == "geostrophic":
+        out.append("Winds are geostrophic (from the geopotential): flow across the isobars near the "
+                   "ground and in strongly curved flow is missed.")
+    spacing = _grid_spacing_deg(ds)
+    if spacing is not None and spacing >= 1.0:
+        out.append(f"The grid is coarse ({spacing:g} degrees, about {spacing * 111:.0f} km): features "
+                   "smaller than a few hundred kilometres are not resolved.")
+    if "surface_pressure" in ds:
+        from parcelcast.sampling import value_at
+        from parcelcast.selection import member_mean, select_time
+
+        ps = value_at(select_time(ds[["surface_pressure"]], brief["valid_time"])["surface_pressure"],
+                      config.lat, config.lon)
+        ps_hpa = float(member_mean(ps)) / 100.0
+        for level in config.levels_hpa:
+            if np.isfinite(ps_hpa) and level > ps_hpa:
+                out.append(f"{level:g} hPa is below the ground at the station (surface pressure "
+                           f"{ps_hpa:.0f} hPa): its values there are extrapolated.")
+    traj = brief["trajectories"]
+    if traj["available"] and traj.get("spread_fraction") is not None and traj["spread_fraction"] > 0.3:
+        out.append(f"The trajectory members spread {formatting.distance_text(traj['spread_km'])} "
+                   f"({traj['spread_fraction']:.0%} of the distance travelled): the origin is uncertain.")
+    if brief["members_in_analysis"] > 1:
+        out.append(f"Values are means over the {brief['members_in_analysis']} members of the ensemble "
+                   "analysis.")
+    return out
+
+
+def _grid_spacing_deg(ds) -> float | None:
+    if "lat" not in ds.dims or ds.sizes["lat"] < 2:
+        return None
+    return float(np.round(np.abs(np.diff(ds["lat"].values)).max(), 3))
