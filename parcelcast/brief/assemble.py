@@ -256,7 +256,7 @@ def split_entry(ds, config: BriefConfig, valid_time, trajectories: dict) -> dict
 # --------------------------------------------------------------------------- profile
 def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
     """The analysis column at the station: stability, moisture and thermal-wind layers."""
-    from parcelcast.profiles import analyse, column_from_analysis
+    from parcelcast.profiles import analyse, column_from_analysis, gridded_layer_advection
 
     entry = {"available": False}
     if ds.sizes.get("level", 1) < 4:
@@ -269,6 +269,11 @@ def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
     try:
         profile = column_from_analysis(ds, config.lat, config.lon, valid_time)
         result = analyse(profile)
+        gridded = None
+        if {"temperature", "u", "v"} <= set(ds.data_vars):  # as `profile --at`
+            gridded = gridded_layer_advection(ds, config.lat, config.lon,
+                                              [(x["bottom_hPa"], x["top_hPa"]) for x in result["layers"]],
+                                              valid_time)
     except ParcelcastError as exc:
         entry["reason"] = str(exc)
         return entry
@@ -287,6 +292,9 @@ def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
         "layers": [{"bottom_hPa": _number(lay["bottom_hPa"], 0), "top_hPa": _number(lay["top_hPa"], 0),
                     "advection_K_per_h": _number(lay["advection_K_per_h"], 3)}
                    for lay in result.get("layers", [])],
+        "gridded_layers": None if gridded is None else [
+            {"bottom_hPa": _number(g["bottom_hPa"], 0), "top_hPa": _number(g["top_hPa"], 0),
+             "advection_K_per_h": _number(g["advection_K_per_h"], 3)} for g in gridded],
         "notes": list(profile.notes),
         "_profile": profile,
         "_result": result,

@@ -83,7 +83,8 @@ def draw_figures(brief: dict, folder: Path) -> list[dict]:
         from parcelcast.render.skewt import save_profile_diagram
 
         name = "profile.png"
-        save_profile_diagram(prof["_profile"], prof["_result"], folder / name)
+        save_profile_diagram(prof["_profile"], prof["_result"], folder / name,
+                             gridded=prof["gridded_layers"])
         figures.append({"file": name, "kind": "profile_diagram", "area": None, "coastlines": None,
                         "caption": "Profile at the station (skew-T log-p): temperature, dew point, "
                         "lifted parcel, winds in kt and the advection profile."})
@@ -143,13 +144,21 @@ def page_context(brief: dict, figures: list[dict]) -> dict:
     }
     traj, split, prof = brief["trajectories"], brief["split"], brief["profile"]
     context["trajectory_rows"] = _trajectory_rows(traj) if traj["available"] else []
-    context["trajectory_reason"] = traj.get("reason", "")
+    context["trajectory_reason"] = _sentence(traj.get("reason", ""))
     context["split_rows"] = _split_rows(split) if split["available"] else []
-    context["split_reason"] = split.get("reason", "")
+    context["split_reason"] = _sentence(split.get("reason", ""))
     context["consistency_lines"] = _consistency_lines(split.get("consistency"))
     context["profile_rows"] = _profile_rows(prof) if prof["available"] else []
-    context["profile_reason"] = prof.get("reason", "")
+    context["profile_reason"] = _sentence(prof.get("reason", ""))
     return context
+
+
+def _sentence(text: str) -> str:
+    """``text`` as a sentence: capital first letter, full stop."""
+    text = text.strip()
+    if not text:
+        return text
+    return text[0].upper() + text[1:] + ("" if text.endswith(".") else ".")
 
 
 def _level_row(level: dict) -> list[str]:
@@ -230,7 +239,10 @@ def _profile_rows(prof: dict) -> list[list[str]]:
         ["top-temperature guidance (mixing down, common practice)",
          num(prof["top_temperature_degC"], "\u00b0C", "{:.1f}")],
     ]
-    for lay in prof["layers"]:
-        rows.append([f"thermal-wind advection {lay['bottom_hPa']:.0f}-{lay['top_hPa']:.0f} hPa",
-                     formatting.advection_text(lay["advection_K_per_h"])])
+    gridded = prof["gridded_layers"] or [None] * len(prof["layers"])
+    for lay, grid in zip(prof["layers"], gridded):
+        text = f"{formatting.advection_text(lay['advection_K_per_h'])} from the wind profile"
+        if grid is not None:
+            text += f", {formatting.advection_text(grid['advection_K_per_h'])} gridded"
+        rows.append([f"advection {lay['bottom_hPa']:.0f}-{lay['top_hPa']:.0f} hPa", text])
     return rows

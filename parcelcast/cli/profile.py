@@ -205,7 +205,7 @@ def run(args) -> int:
     if args.plot:
         from parcelcast.render.skewt import save_profile_diagram
 
-        save_profile_diagram(profile, result, args.plot)
+        save_profile_diagram(profile, result, args.plot, gridded=comparison)
     if args.json:
         _common.print_json(doc)
     else:

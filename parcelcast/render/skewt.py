@@ -1,11 +1,13 @@
-"""A skew-T log-p diagram of a profile, with a side panel of thermal-wind advection.
+"""A skew-T log-p diagram of a profile, with the temperature-advection profile beside it.
 
 Our own layout: the main panel has temperature against ln p with isotherms skewed
 by ``SKEW`` kelvin per unit of ln(1000 hPa / p); thin guide lines for dry adiabats,
 pseudo-adiabats and saturation mixing ratio; the temperature, dew point and lifted
 parcel; the parcel's positive area (buoyant) and negative area (below its LFC)
-shaded; wind arrows (pointing downwind, length proportional to speed) in a narrow
-strip; and a side panel of horizontal bars of the thermal-wind layer advection.
+shaded; wind barbs in knots in a white strip along its right edge.  Beside it, the
+advection profile of the column: a line through the thermal-wind layer estimates,
+shaded warm or cold from zero, with the analysis's gridded advection at the same
+column as diamonds.
 
 Functions take an ``ax`` (or make one) and return what they drew.  Only what the
 library computed is drawn; no science here.  Matplotlib is imported inside the
@@ -26,7 +28,7 @@ __all__ = [
     "draw_sounding",
     "draw_parcel",
     "draw_winds",
-    "draw_layer_advection",
+    "draw_advection_profile",
     "profile_diagram",
     "save_profile_diagram",
 ]
@@ -154,91 +156,155 @@ def draw_parcel(profile, parcel, ax=None, label="surface parcel"):
     return {"parcel": line, "positive": pos, "negative": neg, "levels": marks}
 
 
-def draw_winds(profile, ax=None, max_arrows=20):
-    """Wind arrows (downwind, length ~ speed) against pressure, in an axes of their own.
+def draw_winds(profile, ax=None, max_barbs=22):
+    """Wind barbs in knots (WMO plotting convention: the staff points towards where the wind
+    comes from) in a white strip along the right edge of the diagram ``ax``.
 
-    Returns the quiver and the speed labels.
+    Returns ``{"barbs": Barbs, "strip": the strip's patch}``.
     """
+    from parcelcast import formatting
+
     ax = _new_ax(ax)
     ph = profile.pressure / 100.0
     ok = np.isfinite(profile.u) & np.isfinite(profile.v) & (ph >= P_TOP)
-    idx = np.flatnonzero(ok)
-    if idx.size > max_arrows:
-        idx = idx[np.linspace(0, idx.size - 1, max_arrows).round().astype(int)]
-    ax.set_yscale("log")
-    ax.set_ylim(P_BOTTOM, P_TOP)
-    ax.set_xlim(-1, 1)
-    ax.set_xticks([])
-    ax.tick_params(labelleft=False, left=False)
-    ax.set_title("wind", fontsize=8)
-    u, v = profile.u[idx], profile.v[idx]
-    q = ax.quiver(np.zeros(idx.size), ph[idx], u, v, color=COLOURS["wind"], scale=90.0, width=0.035,
-                  pivot="middle", zorder=3)
-    labels = [ax.text(0.55, p, f"{s * 1.943844:.0f}", fontsize=6, va="center", color=COLOURS["wind"])
-              for p, s in zip(ph[idx], np.hypot(u, v))]
-    ax.text(0.5, 0.005, "kt", transform=ax.transAxes, fontsize=6, ha="center", va="bottom")
-    return {"quiver": q, "labels": labels}
+    idx = _spaced_in_log_p(ph, np.flatnonzero(ok), max_barbs)
+    strip_x = 0.92  # axes fraction
+    strip = ax.axvspan(T_LEFT + (strip_x - 0.06) * (T_RIGHT - T_LEFT), T_RIGHT, color="white",
+                       alpha=0.85, lw=0, zorder=6)
+    x = np.full(idx.size, T_LEFT + strip_x * (T_RIGHT - T_LEFT))
+    barbs = ax.barbs(x, ph[idx], formatting.knots(profile.u[idx]), formatting.knots(profile.v[idx]),
+                     length=5.5, linewidth=0.8, color=COLOURS["wind"], zorder=7)
+    ax.text(strip_x, 1.005, "wind (kt)", transform=ax.transAxes, fontsize=7, ha="center", va="bottom")
+    return {"barbs": barbs, "strip": strip}
 
 
-def draw_layer_advection(layers, ax=None):
-    """Horizontal bars of layer advection (K/h) spanning each layer's pressures; returns the bars."""
+def _spaced_in_log_p(ph, idx, count):
+    """Indices ``idx`` thinned so that kept levels are at least 1/``count`` of the diagram's
+    ln p height apart (barbs of a dense sounding do not overlap), the lowest kept first."""
+    if idx.size == 0:
+        return idx
+    gap = np.log(P_BOTTOM / P_TOP) / count
+    order = idx[np.argsort(-ph[idx])]  # from the ground up
+    kept = [order[0]]
+    for k in order[1:]:
+        if np.log(ph[kept[-1]] / ph[k]) >= gap:
+            kept.append(k)
+    return np.array(kept, dtype=int)
+
+
+def _layer_steps(layers):
+    """Pressures (hPa) and values (K/h) of the piecewise-constant layer profile, with gaps
+    (NaN) between layers that do not touch; layers without a value are left out."""
+    p, x = [], []
+    for lay in layers:
+        val = lay["advection_K_per_h"]
+        if val is None or not np.isfinite(val):
+            continue
+        if p and not np.isclose(p[-1], lay["bottom_hPa"]):
+            p.append(np.nan)
+            x.append(np.nan)
+        p += [lay["bottom_hPa"], lay["top_hPa"]]
+        x += [val, val]
+    return np.array(p, dtype=float), np.array(x, dtype=float)
+
+
+def draw_advection_profile(layers, gridded=None, ax=None):
+    """The temperature-advection profile at the column: a line through the thermal-wind layer
+    estimates (K/h) shaded warm (positive) or cold (negative) from zero, and the gridded
+    -V.grad T layer means of the analysis at the same column as diamonds.
+
+    Parameters
+    ----------
+    layers : list of dict
+        ``{"bottom_hPa", "top_hPa", "advection_K_per_h"}`` (thermal-wind estimate).
+    gridded : list of dict, optional
+        The same keys, from :func:`parcelcast.profiles.gridded_layer_advection`.
+
+    Returns ``{"line", "warm", "cold", "points"}`` (points None without ``gridded``).
+    """
     ax = _new_ax(ax)
     ax.set_yscale("log")
     ax.set_ylim(P_BOTTOM, P_TOP)
-    ax.tick_params(labelleft=False, left=False)
-    bars = []
-    vals = [lay["advection_K_per_h"] for lay in layers]
-    finite = [abs(v) for v in vals if v is not None and np.isfinite(v)]
-    lim = max(finite + [0.2]) * 1.25
-    for lay, val in zip(layers, vals):
-        if val is None or not np.isfinite(val):
-            continue
-        bottom, top = lay["bottom_hPa"], lay["top_hPa"]
-        colour = COLOURS["warm"] if val >= 0 else COLOURS["cold"]
-        bars.append(ax.fill_betweenx([bottom, top], 0, val, color=colour, alpha=0.8, lw=0))
-        ax.text(val, np.sqrt(bottom * top), f"{val:+.2f}", fontsize=7, va="center",
-                ha="left" if val >= 0 else "right")
+    ax.tick_params(labelleft=False, left=False, labelsize=7)
+    p, x = _layer_steps(layers)
+    values = [abs(v) for v in x[np.isfinite(x)]]
+    points = None
+    gp, gx = np.array([]), np.array([])
+    if gridded:
+        pairs = [(np.sqrt(g["bottom_hPa"] * g["top_hPa"]), g["advection_K_per_h"]) for g in gridded
+                 if g["advection_K_per_h"] is not None and np.isfinite(g["advection_K_per_h"])]
+        if pairs:
+            gp, gx = (np.array(v, dtype=float) for v in zip(*pairs))
+            values += list(np.abs(gx))
+    lim = max(values + [0.2]) * 1.3
+    zero = np.zeros_like(x)
+    warm = ax.fill_betweenx(p, zero, x, where=np.nan_to_num(x) > 0, color=COLOURS["warm"], alpha=0.35,
+                            lw=0, interpolate=True, label="warm advection")
+    cold = ax.fill_betweenx(p, zero, x, where=np.nan_to_num(x) < 0, color=COLOURS["cold"], alpha=0.35,
+                            lw=0, interpolate=True, label="cold advection")
+    (line,) = ax.plot(x, p, color="#2f2f2f", lw=1.6, label="from the wind profile (thermal wind)")
+    if gp.size:
+        (points,) = ax.plot(gx, gp, linestyle="none", marker="D", markersize=5.5, markerfacecolor="white",
+                            markeredgecolor="#2f2f2f", label="gridded -V\u00b7\u2207T, layer mean")
     ax.axvline(0, color="#777777", lw=0.8)
     ax.set_xlim(-lim, lim)
     ax.set_xlabel("K/h", fontsize=8)
-    ax.set_title("thermal-wind\nadvection\n(+ warm)", fontsize=8)
-    return bars
+    ax.grid(axis="y", color="#e6e6e6", lw=0.6)
+    ax.set_title("temperature advection\n(+ warm, \u2212 cold)", fontsize=8)
+    ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.07), fontsize=6.5, frameon=False)
+    return {"line": line, "warm": warm, "cold": cold, "points": points}
 
 
-def profile_diagram(profile, result, fig=None, parcel="surface"):
-    """The whole diagram; returns ``(fig, {"main", "wind", "advection"} axes, artists)``."""
+def profile_diagram(profile, result, fig=None, parcel="surface", gridded=None):
+    """The whole diagram; returns ``(fig, {"main", "advection"} axes, artists)``.
+
+    ``gridded``: the analysis's layer-mean advection at the column (see
+    :func:`draw_advection_profile`), drawn beside the thermal-wind profile.
+    """
     import matplotlib.pyplot as plt
+    from matplotlib import ticker
 
     if fig is None:
         fig = plt.figure(figsize=(9.0, 7.5))
-    gs = fig.add_gridspec(1, 3, width_ratios=[6.0, 0.8, 1.6], wspace=0.05)
+    gs = fig.add_gridspec(1, 2, width_ratios=[5.4, 1.7], wspace=0.06, left=0.08, right=0.97,
+                          top=0.88, bottom=0.14)
     main = fig.add_subplot(gs[0])
-    wind = fig.add_subplot(gs[1], sharey=main)
-    adv = fig.add_subplot(gs[2], sharey=main)
+    adv = fig.add_subplot(gs[1], sharey=main)
     artists = {"guides": draw_guides(main)}
     artists.update(draw_sounding(profile, main))
     parcels = result.get("_parcels", {})
     if parcel in parcels:
         artists.update(draw_parcel(profile, parcels[parcel], main, label=f"{parcel.replace('_', ' ')} parcel"))
-    artists["winds"] = draw_winds(profile, wind)
-    artists["advection"] = draw_layer_advection(result.get("layers", []), adv)
+    artists["winds"] = draw_winds(profile, main)
+    artists["advection"] = draw_advection_profile(result.get("layers", []), gridded, adv)
     main.legend(loc="lower left", fontsize=7, framealpha=0.9)
-    from matplotlib import ticker
-
     main.yaxis.set_major_locator(ticker.FixedLocator([1000, 850, 700, 500, 400, 300, 250, 200, 150, 100]))
     main.yaxis.set_major_formatter(ticker.FuncFormatter(lambda v, _: f"{v:.0f}"))
     main.yaxis.set_minor_locator(ticker.NullLocator())
     cape = result.get("cape_J_per_kg", {}).get(parcel, np.nan)
     cin = result.get("cin_J_per_kg", {}).get(parcel, np.nan)
-    when = f"  {str(profile.time)[:16]} UTC" if profile.time is not None else ""
-    main.set_title(f"{profile.source}{when}\nCAPE {cape:.0f} J/kg, CIN {cin:.0f} J/kg ({parcel.replace('_', ' ')})",
-                   fontsize=8, loc="left")
-    fig.text(0.01, 0.005, "Guidance, not an official forecast: defer to the national weather service.",
-             fontsize=6, color="#555555")
-    return fig, {"main": main, "wind": wind, "advection": adv}, artists
+    from parcelcast import formatting
+
+    when = f", valid {formatting.time_text(profile.time)}" if profile.time is not None else ""
+    where = formatting.position_text(profile.latitude, profile.longitude) if profile.latitude is not None else ""
+    fig.suptitle(f"Profile {where}{when}", fontsize=10, x=0.08, ha="left")
+    fig.text(0.08, 0.915, f"{_short_source(profile.source)}; {parcel.replace('_', ' ')} parcel: "
+             f"CAPE {cape:.0f} J/kg, CIN {cin:.0f} J/kg", fontsize=8, ha="left", color="#333333")
+    fig.text(0.08, 0.01, "Guidance, not an official forecast: defer to the national weather service.",
+             fontsize=6.5, color="#555555")
+    return fig, {"main": main, "advection": adv}, artists
 
 
-def save_profile_diagram(profile, result, path, dpi=110):
+def _short_source(source: str) -> str:
+    """The file name of a profile's source (folders left out), keeping any "at ..." suffix."""
+    from pathlib import Path
+
+    text = str(source)
+    head, sep, tail = text.partition(" at ")
+    return Path(head).name + (sep + tail if sep else "")
+
+
+def save_profile_diagram(profile, result, path, dpi=110, gridded=None):
     """Draw :func:`profile_diagram` and write it to ``path`` (PNG) atomically, Agg backend."""
     import matplotlib
 
@@ -248,7 +314,7 @@ def save_profile_diagram(profile, result, path, dpi=110):
     from parcelcast.io.atomic import atomic_path
 
     fig = Figure(figsize=(9.0, 7.5))
-    profile_diagram(profile, result, fig=fig)
+    profile_diagram(profile, result, fig=fig, gridded=gridded)
     with atomic_path(path) as tmp:
         fig.savefig(tmp, format="png", dpi=dpi)
     return path
