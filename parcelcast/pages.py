@@ -22,7 +22,7 @@ def _environment():
 
     env = jinja2.Environment(loader=jinja2.PackageLoader("parcelcast", "templates"),
                              autoescape=False, undefined=jinja2.StrictUndefined,
-                             trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
+                             trim_blocks=False, lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["cell"] = lambda value: str(value).replace("|", "\\|").replace("\n", " ")
     return env
 

@@ -1,18 +1,27 @@
-"""The written case review: Markdown and HTML from what the library computed.
+"""The written case review: Markdown and HTML from one template (``templates/review.j2``).
 
-Says plainly that the content is guidance, not an official forecast or warning.
+Says plainly that the content is guidance, not an official forecast or warning.  Both
+pages carry the same sections (summary, trajectory, timeline, figures, method), because
+both come from the same template (:mod:`parcelcast.pages`).
 """
 
 from __future__ import annotations
 
-import html
-
+from parcelcast import formatting
 from parcelcast.budget.consistency import verdict
 from parcelcast.cli import DISCLAIMER
 
 FIGURES = (("timeline.png", "Split of the change at the station, accumulated from the start"),
            ("split-maps.png", "The split as maps over the window"),
            ("trajectories.png", "Back trajectories arriving at key times"))
+
+METHOD = ("Advective part: -V.grad T on the sphere of the fields interpolated linearly in time "
+          "between analyses, integrated by Simpson's rule on each piece between analysis times. "
+          "Vertical part: omega times the static stability R_d T/(c_p p) - dT/dp "
+          "(not available without omega). Residual: what remains, i.e. diabatic heating "
+          "(sunshine, cloud, evaporation, radiation) plus errors, plus the vertical-motion part "
+          "when omega is not available. Lagrangian view: isobaric back "
+          "trajectories; the temperature change following the air is the non-advective part.")
 
 
 def _k(value) -> str:
@@ -37,72 +46,51 @@ def summary_rows(review: dict) -> list[tuple[str, str]]:
     return rows
 
 
+def consistency_lines(consistency) -> list[str]:
+    """The split's check that its two views agree (the ``consistency`` object of
+    :mod:`parcelcast.budget.consistency`): the figure and verdict, then its warnings."""
+    if not consistency:
+        return []
+    from parcelcast.budget.consistency import summary
+
+    return [summary(consistency) + "."] + [str(w) for w in consistency.get("warnings", [])]
+
+
+def page_context(review: dict, images: dict | None = None) -> dict:
+    """The words and tables of the review page; ``images`` maps figure files to the ``src``
+    to use (default: the file names, for pages beside their figures)."""
+    case, lg = review["case"], review["lagrangian"]
+    images = images or {}
+    consistency = review["consistency"]
+    return {
+        "title": f"Case review: {case.title}",
+        "disclaimer": DISCLAIMER,
+        "station_line": (f"Station {case.station_name} ({formatting.position_text(case.lat, case.lon)}), "
+                         f"{case.level_hpa:g} hPa, {formatting.time_text(case.start)} to "
+                         f"{formatting.time_text(case.end)}, {case.wind} wind."),
+        "summary_rows": summary_rows(review),
+        "trajectory_line": (
+            f"The central back trajectory started at "
+            f"{formatting.position_text(lg['origin_lat'], lg['origin_lon'])}; {lg['reached_start']} of "
+            f"{lg['trajectories']} trajectories reached the window start (statuses: "
+            f"{', '.join(lg['statuses'])})."),
+        "consistency_meaning": consistency["meaning"],
+        "consistency_warnings": [str(w) for w in consistency["warnings"]],
+        "timeline_rows": [[formatting.time_text(row["time"]), _k(row["observed_change_K"]),
+                           _k(row["advective_K"]), _k(row["vertical_K"]), _k(row["residual_K"])]
+                          for row in review["timeline"]],
+        "figures": [{"src": images.get(name, name), "caption": caption} for name, caption in FIGURES],
+        "method": METHOD,
+    }
+
+
 def markdown(review: dict) -> str:
-    case = review["case"]
-    lines = [
-        f"# Case review: {case.title}",
-        "",
-        f"> {DISCLAIMER}",
-        "",
-        f"Station **{case.station_name}** ({case.lat:.2f} N, {case.lon:.2f} E), "
-        f"{case.level_hpa:g} hPa, {str(case.start)[:16]} to {str(case.end)[:16]} UTC, "
-        f"{case.wind} wind.",
-        "",
-        "| quantity | value |",
-        "| --- | --- |",
-    ]
-    lines += [f"| {a} | {b} |" for a, b in summary_rows(review)]
-    lg = review["lagrangian"]
-    lines += [
-        "",
-        f"The central back trajectory started at {lg['origin_lat']:.1f} N, {lg['origin_lon']:.1f} E; "
-        f"{lg['reached_start']} of {lg['trajectories']} trajectories reached the window start "
-        f"(statuses: {', '.join(lg['statuses'])}).",
-        "",
-        "## Timeline",
-        "",
-        "| time (UTC) | observed | advective | vertical | residual |",
-        "| --- | --- | --- | --- | --- |",
-    ]
-    for row in review["timeline"]:
-        lines.append(f"| {str(row['time'])[:16]} | {_k(row['observed_change_K'])} | "
-                     f"{_k(row['advective_K'])} | {_k(row['vertical_K'])} | {_k(row['residual_K'])} |")
-    c = review["consistency"]
-    lines += ["", "## Do the two views agree?", "", c["meaning"], ""]
-    lines += [f"- {w}" for w in c["warnings"]]
-    lines += ["", "## Figures", ""]
-    lines += [f"![{caption}]({name})" for name, caption in FIGURES]
-    lines += ["", "## Method", "",
-              "Advective part: -V.grad T on the sphere of the fields interpolated linearly in time "
-              "between analyses, integrated by Simpson's rule on each piece between analysis times. Vertical part: omega times the static stability R_d T/(c_p p) - dT/dp "
-              "(not available without omega). Residual: what remains, i.e. diabatic heating "
-              "(sunshine, cloud, evaporation, radiation) plus errors, plus the vertical-motion part "
-              "when omega is not available. Lagrangian view: isobaric back "
-              "trajectories; the temperature change following the air is the non-advective part.", ""]
-    return "\n".join(lines)
+    from parcelcast.pages import render_page
+
+    return render_page("review.j2", "markdown", page_context(review))
 
 
-def html_page(review: dict) -> str:
-    case = review["case"]
-    rows = "".join(f"<tr><td>{html.escape(a)}</td><td>{html.escape(b)}</td></tr>"
-                   for a, b in summary_rows(review))
-    timeline = "".join(
-        f"<tr><td>{str(r['time'])[:16]}</td><td>{_k(r['observed_change_K'])}</td><td>{_k(r['advective_K'])}"
-        f"</td><td>{_k(r['vertical_K'])}</td><td>{_k(r['residual_K'])}</td></tr>" for r in review["timeline"])
-    figures = "".join(f"<figure><img src='{n}' alt='{html.escape(c)}'><figcaption>{html.escape(c)}"
-                      "</figcaption></figure>" for n, c in FIGURES)
-    return f"""<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><title>Case review: {html.escape(case.title)}</title>
-<style>body{{font-family:sans-serif;max-width:60em;margin:2em auto;color:#1d2a33}}
-.notice{{border-left:4px solid #b9770e;background:#fdf2e0;padding:.6em 1em}}
-table{{border-collapse:collapse}}td,th{{border:1px solid #ccd;padding:.2em .6em}}img{{max-width:100%}}</style>
-</head><body><h1>Case review: {html.escape(case.title)}</h1>
-<p class="notice">{html.escape(DISCLAIMER)}</p>
-<p>Station <b>{html.escape(case.station_name)}</b> ({case.lat:.2f} N, {case.lon:.2f} E), {case.level_hpa:g} hPa,
-{str(case.start)[:16]} to {str(case.end)[:16]} UTC, {html.escape(case.wind)} wind.</p>
-<table><tr><th>quantity</th><th>value</th></tr>{rows}</table>
-<h2>Do the two views agree?</h2><p>{html.escape(review["consistency"]["meaning"])}</p>
-<ul>{"".join(f"<li>{html.escape(w)}</li>" for w in review["consistency"]["warnings"])}</ul>
-<h2>Timeline</h2><table><tr><th>time (UTC)</th><th>observed</th><th>advective</th><th>vertical</th>
-<th>residual</th></tr>{timeline}</table><h2>Figures</h2>{figures}</body></html>
-"""
+def html_page(review: dict, images: dict | None = None) -> str:
+    from parcelcast.pages import render_page
+
+    return render_page("review.j2", "html", page_context(review, images))

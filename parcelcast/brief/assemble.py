@@ -111,11 +111,25 @@ def level_entry(ds, config: BriefConfig, level_hpa: float, valid_time) -> dict:
         "wind_speed_kt": _number(formatting.knots(np.hypot(u, v)), 1) if None not in (u, v) else None,
         "advection_K_per_h": _number(member_mean(adv), 4),
         "missing_points_in_field": int(fields.attrs["missing_points"]),
+        "missing_points_in_area": _missing_in_area(fields, config.map_area()),
         "_fields": member_mean(fields),
     }
     if "member" in adv.dims:
         entry["advection_spread_K_per_h"] = _number(adv.std("member", skipna=False), 4)
     return entry
+
+
+def _missing_in_area(fields, area) -> int:
+    """Grid points inside the map area without an advection value (any member)."""
+    from parcelcast.render.maps import inside
+
+    adv = fields["temperature_advection"]
+    if "member" in adv.dims:
+        adv = adv.isnull().any("member")
+    else:
+        adv = adv.isnull()
+    flagged = inside(fields, area, np.where(adv.values, 1.0, 0.0))
+    return int(np.nansum(flagged))
 
 
 # --------------------------------------------------------------------------- trajectories
@@ -306,9 +320,9 @@ def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
 def _missing_warnings(brief: dict) -> list[str]:
     out = []
     for lev in brief["levels"]:
-        if lev.get("available") and lev["missing_points_in_field"]:
-            out.append(f"{lev['level_hPa']:g} hPa: {lev['missing_points_in_field']} grid points have "
-                       "no advection value (below the ground, near the poles, or missing in the file); "
+        if lev.get("available") and lev["missing_points_in_area"]:
+            out.append(f"{lev['level_hPa']:g} hPa: {lev['missing_points_in_area']} grid points in the "
+                       "map area have no advection value (below the ground, or missing in the file); "
                        "they are grey on the map")
         if lev.get("available") and lev["advection_K_per_h"] is None:
             out.append(f"{lev['level_hPa']:g} hPa: no advection value at the station (missing data "

@@ -8,6 +8,10 @@ from __future__ import annotations
 
 from parcelcast import formatting
 
+#: the Eulerian and Lagrangian advective parts differing by this much or more are called out
+#: (common practice: about the size of a day's analysis error at 850 hPa)
+DISAGREEMENT_K = 1.0
+
 
 def level_sentence(level: dict) -> str:
     """``"At 850 hPa: cold advection of 0.31 K/h; 6.9 °C, wind 250° 30 kt."``"""
@@ -18,7 +22,7 @@ def level_sentence(level: dict) -> str:
         wind = ("calm" if round(level["wind_speed_kt"]) == 0 else
                 f"{level['wind_direction_deg']:03.0f}\u00b0 {level['wind_speed_kt']:.0f} kt")
     words = formatting.advection_words(level["advection_K_per_h"])
-    return (f"At {level['level_hPa']:g} hPa: {words[0].upper() + words[1:]}; temperature "
+    return (f"At {level['level_hPa']:g} hPa: {words}; temperature "
             f"{formatting.temperature_text(level['temperature_K'])}, wind {wind}.")
 
 
@@ -54,12 +58,18 @@ def split_sentence(split: dict) -> str:
         return (f"The split of the change at {split['level_hPa']:g} hPa is not available "
                 "(missing values).")
     rest = split["residual_K"] + (split["vertical_K"] or 0.0)
-    return (f"Since {formatting.time_text(split['start'])} the {split['level_hPa']:g} hPa temperature "
+    text = (f"Since {formatting.time_text(split['start'])} the {split['level_hPa']:g} hPa temperature "
             f"changed by {formatting.difference_text(observed)}: "
             f"{formatting.difference_text(advective)} carried in by the wind and "
             f"{formatting.difference_text(rest)} from other causes "
             f"({'rising or sinking air, ' if split['vertical_available'] else ''}heating or cooling "
             "on the spot, and errors).")
+    lagrangian = split["lagrangian"]["advective_K"]
+    difference = split["advective_difference_K"]
+    if lagrangian is not None and difference is not None and abs(difference) >= DISAGREEMENT_K:
+        text += (f" Following the air instead, {formatting.difference_text(lagrangian)} was carried in: "
+                 f"the two views differ by {abs(difference):.1f} K, so read the split with care.")
+    return text
 
 
 def profile_sentence(profile: dict) -> str:

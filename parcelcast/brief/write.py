@@ -127,6 +127,8 @@ def page(brief: dict, figures: list[dict], fmt: str, folder: Path) -> str:
 
 def page_context(brief: dict, figures: list[dict]) -> dict:
     """The words and tables of the page (formatted for people: degC, kt, K/h)."""
+    from parcelcast.report import consistency_lines
+
     station = brief["station"]
     context = {
         "title": f"{brief['title']}, valid {formatting.time_text(brief['valid_time'])}",
@@ -147,7 +149,7 @@ def page_context(brief: dict, figures: list[dict]) -> dict:
     context["trajectory_reason"] = _sentence(traj.get("reason", ""))
     context["split_rows"] = _split_rows(split) if split["available"] else []
     context["split_reason"] = _sentence(split.get("reason", ""))
-    context["consistency_lines"] = _consistency_lines(split.get("consistency"))
+    context["consistency_lines"] = consistency_lines(split.get("consistency"))
     context["profile_rows"] = _profile_rows(prof) if prof["available"] else []
     context["profile_reason"] = _sentence(prof.get("reason", ""))
     return context
@@ -202,26 +204,6 @@ def _split_rows(split: dict) -> list[list[str]]:
         ["following the air: advective", d(lg["advective_K"])],
         ["Eulerian minus Lagrangian advective part", d(split["advective_difference_K"])],
     ]
-
-
-def _consistency_lines(consistency) -> list[str]:
-    """The split's consistency check between its two views, when the split provides one."""
-    if not consistency:
-        return []
-    lines = []
-    diff = consistency.get("eulerian_minus_lagrangian_K")
-    ratio = consistency.get("ratio")
-    verdict = consistency.get("consistent")
-    head = "The two views agree" if verdict else ("The two views disagree" if verdict is not None
-                                                   else "Agreement of the two views not known")
-    detail = []
-    if diff is not None:
-        detail.append(f"Eulerian minus Lagrangian {formatting.difference_text(diff, 2)}")
-    if ratio is not None:
-        detail.append(f"ratio {ratio:.2f}")
-    lines.append(head + (f" ({', '.join(detail)})." if detail else "."))
-    lines += [str(w) for w in consistency.get("warnings", [])]
-    return lines
 
 
 def _profile_rows(prof: dict) -> list[list[str]]:
