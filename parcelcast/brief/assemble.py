@@ -184,6 +184,7 @@ def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
         "available": True,
         "arrival_time": valid_time,
         "origin_time": origin_time,
+        "hours_covered": _number((np.datetime64(valid_time, "ns") - origin_time) / np.timedelta64(1, "h"), 2),
         "origin_lat": _number(lat0, 3),
         "origin_lon": _number(((lon0 + 180.0) % 360.0) - 180.0, 3),
         "origin_pressure_hPa": _number(paths["pressure"].values[central, last] / 100.0, 2),

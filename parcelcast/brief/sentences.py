@@ -31,13 +31,14 @@ def trajectory_sentence(traj: dict) -> str:
     if not traj["available"]:
         return f"No back trajectory: {traj['reason']}."
     change = traj["temperature_change_K"]
+    ago = f"{traj['hours_covered']:g} h"
     if change is None:
         then = "its temperature there is not available"
     elif abs(change) < 0.5:
-        then = f"at about the same temperature {traj['hours']:g} h ago"
+        then = f"at about the same temperature {ago} ago"
     else:
         then = (f"where it was {abs(change):.0f} \u00b0C {'colder' if change > 0 else 'warmer'} "
-                f"{traj['hours']:g} h ago")
+                f"{ago} ago")
     where = (f"from {formatting.distance_text(traj['distance_km'])} "
              f"{formatting.compass(traj['bearing_deg'])}" if traj["distance_km"] >= 10 else
              "from close to the station")
@@ -45,7 +46,8 @@ def trajectory_sentence(traj: dict) -> str:
             f"{traj['level_hPa']:g} hPa came {where} ({formatting.position_text(traj['origin_lat'], traj['origin_lon'])}, "
             f"{traj['origin_pressure_hPa']:.0f} hPa), {then}.")
     if not traj["complete"]:
-        text += f" The path did not cover the full {traj['hours']:g} h ({traj['central_status']})."
+        text += (f" The path covers only {ago} of the {traj['hours']:g} h asked for "
+                 f"({traj['central_status'].replace('_', ' ')}).")
     return text
 
 

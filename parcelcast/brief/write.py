@@ -176,7 +176,7 @@ def _level_row(level: dict) -> list[str]:
 def _trajectory_rows(traj: dict) -> list[list[str]]:
     rows = [
         ["arrival", f"{formatting.time_text(traj['arrival_time'])} at {traj['level_hPa']:g} hPa"],
-        [f"origin {traj['hours']:g} h earlier", f"{formatting.position_text(traj['origin_lat'], traj['origin_lon'])}, "
+        [f"origin {traj['hours_covered']:g} h earlier", f"{formatting.position_text(traj['origin_lat'], traj['origin_lon'])}, "
          f"{traj['origin_pressure_hPa']:.0f} hPa"],
         ["distance and direction", f"{formatting.distance_text(traj['distance_km'])} "
          f"{formatting.compass(traj['bearing_deg'])}"],

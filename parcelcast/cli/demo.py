@@ -48,9 +48,36 @@ def run(args) -> int:
                     f"{values[2]:6.1f} {values[3]:8.3f} {values[4]:8.3f}")
     write_text(out / "station-table.csv", "\n".join(rows) + "\n")
     map_time = ds["time"].values[len(ds["time"]) // 2]
+    area = [station[0] - 12.0, station[0] + 12.0, station[1] - 20.0, station[1] + 20.0]
     advection_map(advection_on_level(ds, 850.0, map_time), out / "advection-850hPa.png",
-                  station=station)
+                  station=(demo.STATION_NAME, *station), area=area)
     print("\n".join(text))
     print(f"\nwrote {analysis_path}, {out / 'station-table.csv'}, {out / 'advection-850hPa.png'}")
+    brief_dir = _briefing(out, ds, area)
+    print(f"wrote {out / BRIEF_CONFIG} and the demo's morning briefing in {brief_dir}/ "
+          "(brief.html, brief.md, brief.json)")
     print(DISCLAIMER)
     return 0
+
+
+BRIEF_CONFIG = "demo-brief.toml"
+
+
+def _briefing(out, ds, area):
+    """End with the morning briefing of the demo: its configuration file, then the briefing
+    from the already opened analysis (the same as ``parcelcast brief demo-brief.toml``)."""
+    from parcelcast import demo
+    from parcelcast.brief import assemble_brief, read_config, write_brief
+    from parcelcast.io.atomic import write_text
+
+    write_text(out / BRIEF_CONFIG, "\n".join([
+        "# The demo's morning briefing: parcelcast brief demo-brief.toml --out brief",
+        "[station]", f'name = "{demo.STATION_NAME}"', f"lat = {demo.STATION_LAT}",
+        f"lon = {demo.STATION_LON}", "[data]", 'analyses = ["demo-analysis.nc"]', 'wind = "actual"',
+        "[brief]", "levels_hPa = [850, 700]", f"area_lat = [{area[0]}, {area[1]}]",
+        f"area_lon = [{area[2]}, {area[3]}]", "trajectory_hours = 24", ""]))
+    brief = assemble_brief(read_config(out / BRIEF_CONFIG), ds)
+    write_brief(brief, out / "brief")
+    print("\nMorning briefing (invented scenario):")
+    print("\n".join(f"  {line}" for line in brief["summary"]))
+    return out / "brief"

@@ -229,7 +229,7 @@ def _native_projection(fields):
     return None
 
 
-def _thinned(lat, lon, values_u, values_v, area, count: int = 16):
+def _thinned(lat, lon, values_u, values_v, area, count: int = 14):
     """Barb positions: about ``count`` along the area's longer side, NaN winds left out."""
     if lat.ndim == 1:
         lat, lon = np.meshgrid(lat, lon, indexing="ij")
@@ -237,8 +237,9 @@ def _thinned(lat, lon, values_u, values_v, area, count: int = 16):
     span = max(lat1 - lat0, (lon1 - lon0) * np.cos(np.deg2rad(0.5 * (lat0 + lat1))))
     spacing_deg = span / count
     step_y = max(1, int(round(spacing_deg / max(np.nanmedian(np.abs(np.diff(lat, axis=0))), 1e-6))))
+    # a degree of longitude is cos(lat) degrees of arc long: more columns per barb
     step_x = max(1, int(round(spacing_deg / max(np.nanmedian(np.abs(np.diff(lon, axis=1))), 1e-6)
-                              * np.cos(np.deg2rad(0.5 * (lat0 + lat1))))))
+                              / max(np.cos(np.deg2rad(0.5 * (lat0 + lat1))), 0.2))))
     sl = (slice(step_y // 2, None, step_y), slice(step_x // 2, None, step_x))
     la, lo, u, v = lat[sl], lon[sl], values_u[sl], values_v[sl]
     ok = np.isfinite(u) & np.isfinite(v)
@@ -309,7 +310,7 @@ def advection_map(level_fields, path=None, station=None, area=None, ax=None, tit
     if station is not None:
         mark_station(ax, station, area)
     bar = fig.colorbar(filled, ax=ax, orientation="horizontal", shrink=0.8, pad=0.07, aspect=40,
-                       format=lambda v, _: f"{v:+.{_decimals(step)}f}")
+                       format=lambda v, _: "0" if abs(v) < 1e-12 else f"{v:+.{_decimals(step)}f}")
     bar.set_label("temperature advection \u2212V\u00b7\u2207T (K/h): red = warm, blue = cold")
     bar.ax.legend(handles=[Patch(facecolor=MISSING_GREY, edgecolor="0.3",
                                  label="below ground or no data")],

@@ -113,6 +113,7 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
         lo, hi = mid - 25.0, mid + 25.0
     norm = Normalize(vmin=lo, vmax=hi)
     lines, marks, handles = [], [], []
+    backward = groups[0][1].attrs.get("direction", "backward") == "backward"
     geodetic = ccrs.PlateCarree()
     for g, (label, part) in enumerate(groups):
         marker = _MARKERS[g % len(_MARKERS)]
@@ -143,14 +144,17 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
         handles.append(Line2D([], [], color="black", linewidth=3.0, marker=marker, markersize=7,
                               markerfacecolor="white", markeredgecolor="black",
                               label=f"{label}: central path bold, members thin, marks every "
-                              f"{MARK_HOURS:g} h (hours from the start)"))
+                              f"{MARK_HOURS:g} h (hours from {'arrival' if backward else 'release'})"))
     coastlines = finish_map(ax, area)
     if station is not None:
         star, _ = mark_station(ax, station, area, named=False)  # named in the legend
         handles.insert(0, star)
     mappable = lines[0] if lines else None
     if mappable is not None:
-        bar = fig.colorbar(mappable, ax=ax, orientation="vertical", shrink=0.75, pad=0.03)
+        # an inset follows the map's drawn box (cartopy fixes the aspect), so the bar never
+        # outgrows a wide map
+        bar = fig.colorbar(mappable, cax=ax.inset_axes([1.03, 0.05, 0.035, 0.9]),
+                           orientation="vertical")
         bar.set_label("parcel pressure (hPa)")
         bar.ax.invert_yaxis()  # low pressure (high up) at the top
     handles.append(Line2D([], [], color="none", label=DISCLAIMER_SHORT))
