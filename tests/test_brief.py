@@ -16,6 +16,7 @@ from __future__ import annotations
 import contextlib
 import io
 import json
+import os
 import re
 import shutil
 import subprocess
@@ -230,7 +231,10 @@ def _chromium() -> str:
     for name in ("chromium", "chromium-browser", "google-chrome"):
         if shutil.which(name):
             return shutil.which(name)
-    pytest.skip("no headless Chromium (Debian package 'chromium'; .ci/run installs it)")
+    message = "no headless Chromium (Debian package 'chromium'; .ci/run installs it)"
+    if os.environ.get("PARCELCAST_REQUIRE_CHROMIUM"):
+        pytest.fail(message)
+    pytest.skip(message)
 
 
 def _screenshot(html: Path, png: Path, profile: Path, size=(1100, 2600)):

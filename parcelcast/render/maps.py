@@ -298,8 +298,10 @@ def advection_map(level_fields, path=None, station=None, area=None, ax=None, tit
     inside_t = inside(fields, area, temp_c)
     t_range = np.nanmax(inside_t) - np.nanmin(inside_t) if np.isfinite(inside_t).any() else 0.0
     interval = 2 if t_range < 24 else 4
+    low = np.floor(np.nanmin(temp_c) / interval) * interval if np.isfinite(temp_c).any() else 0.0
+    high = np.nanmax(temp_c) if np.isfinite(temp_c).any() else 0.0
     isotherms = ax.contour(lon, lat, np.ma.masked_invalid(temp_c),
-                           levels=np.arange(-90, 60, interval), colors=ISOTHERM_COLOUR,
+                           levels=np.arange(low, high + interval, interval), colors=ISOTHERM_COLOUR,
                            linewidths=1.0, linestyles="solid", transform=transform, zorder=2)
     ax.clabel(isotherms, fmt=lambda v: f"{v:.0f}\u00b0C", fontsize=7, inline=True)
     b_lat, b_lon, b_u, b_v = _thinned(lat, lon, formatting.knots(fields["u"].values),

@@ -1,0 +1,112 @@
+"""Maps a forecaster reads: area, coastlines (packaged Natural Earth), grey missing data,
+isotherms in degC, barbs in knots, the named station; trajectory maps with 6-hourly marks.
+
+Outside references: degC = K - 273.15 (SI Brochure 2.3.4); 1 kt = 1852 m/h; the WMO plotting
+convention that a barb's staff points towards where the wind comes from (recalled from memory;
+see test_skewt.py for the same check on the diagram).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import matplotlib
+
+matplotlib.use("Agg")
+
+from datasets import canonical  # noqa: E402
+from parcelcast.advection import advection_on_level  # noqa: E402
+from parcelcast.render import maps  # noqa: E402
+
+
+@pytest.fixture(scope="module")
+def fields():
+    """A westerly 20 m/s over a meridional temperature gradient on a 0..358 grid, with a block
+    of missing values (as below-ground points are) south-west of the station."""
+    lat = np.arange(20.0, 80.01, 2.0)
+    lon = np.arange(0.0, 359.0, 2.0)
+    lat2, lon2 = np.meshgrid(lat, lon, indexing="ij")
+    t = 300.0 - 0.6 * (lat2 - 20.0) + 2.0 * np.sin(np.deg2rad(lon2) * 3)
+    ds = canonical(lat, lon, t, np.full(t.shape, 20.0), np.zeros(t.shape))
+    out = advection_on_level(ds, 850.0)
+    west = ((lon2 + 180.0) % 360.0) - 180.0
+    hole = (lat2 >= 42) & (lat2 <= 46) & (west >= -6) & (west <= 0)
+    for name in ("temperature", "u", "v", "temperature_advection"):
+        out[name] = out[name].where(~hole)
+    return out
+
+
+def test_crop_makes_longitudes_continuous_across_the_area(fields):
+    cropped = maps.crop(fields, [40.0, 60.0, -10.0, 20.0])
+    lon = cropped["lon"].values
+    assert np.all(np.diff(lon) > 0) and lon.min() <= -10.0 and lon.max() >= 20.0
+
+
+def test_advection_map_reads_like_a_chart(fields, tmp_path):
+    import cartopy.mpl.feature_artist as feature_artist
+    import cartopy.crs as ccrs
+
+    area = [40.0, 60.0, -10.0, 20.0]
+    drawn = maps.advection_map(fields, station=("Harbour Point", 50.0, 5.0), area=area)
+    ax = drawn["axes"]
+    assert drawn["coastlines"] == "Natural Earth 1:50m coastlines and land borders (public domain)"
+    features = [a for a in ax.get_children() if isinstance(a, feature_artist.FeatureArtist)]
+    assert len(features) >= 2  # coastlines and borders
+    texts = [t.get_text() for t in ax.texts]
+    assert any("Harbour Point" in t for t in texts)
+    # isotherms in degC: the levels lie within the field's range in Celsius
+    t_c = fields["temperature"].values - 273.15
+    levels = drawn["isotherms"].levels
+    assert levels.min() >= np.nanmin(t_c) - 2 and levels.max() <= np.nanmax(t_c) + 2
+    # barbs in knots: 20 m/s = 38.9 kt (1 kt = 1852 m / 3600 s); cartopy turns the vectors
+    # into the map projection, which keeps their length
+    barbs = drawn["barbs"]
+    assert np.allclose(np.hypot(barbs.u, barbs.v), 20.0 * 3600.0 / 1852.0)
+    assert "valid" in ax.get_title() and "source" in ax.get_title()
+    # grey where data are missing: the pixel at the hole's centre shows the axes background
+    fig = drawn["figure"]
+    fig.canvas.draw()
+    image = np.asarray(fig.canvas.buffer_rgba())[..., :3]
+    x, y = ax.projection.transform_point(-3.0, 44.0, ccrs.PlateCarree())
+    px, py = ax.transData.transform((x, y))
+    height = image.shape[0]
+    grey = np.array([int(maps.MISSING_GREY[i:i + 2], 16) for i in (1, 3, 5)])
+    sample = image[int(height - py), int(px)].astype(int)
+    assert np.abs(sample - grey).max() <= 8, sample
+    x, y = ax.projection.transform_point(10.0, 55.0, ccrs.PlateCarree())
+    px, py = ax.transData.transform((x, y))
+    assert np.abs(image[int(height - py), int(px)].astype(int) - grey).max() > 8
+    maps.save_figure(fig, tmp_path / "map.png")
+    assert (tmp_path / "map.png").read_bytes()[:4] == b"\x89PNG"
+
+
+def test_area_is_checked():
+    from parcelcast.errors import ParcelcastError
+
+    with pytest.raises(ParcelcastError, match="LAT0 < LAT1"):
+        maps.check_area([60.0, 40.0, 0.0, 10.0])
+    with pytest.raises(ParcelcastError, match="4 numbers"):
+        maps.check_area([1.0, 2.0])
+
+
+def test_trajectory_map_marks_every_6_hours_and_keeps_the_legend_outside(tmp_path):
+    from parcelcast.render.trajectory_maps import trajectory_map
+    from parcelcast.trajectories import compute_trajectories
+    from parcelcast.trajectories.analytic import solid_body_dataset
+    from parcelcast.units import Q_
+
+    ds = solid_body_dataset(hours=24, step_hours=6, resolution=2.0, levels_hpa=(850.0,))
+    paths = compute_trajectories(ds, 50.0, 5.0, Q_(850, "hPa"), Q_(-24, "h"), members=3)
+    drawn = trajectory_map(paths, station=("Harbour Point", 50.0, 5.0))
+    assert drawn["coastlines"].startswith("Natural Earth")
+    dots = [m for m in drawn["marks"] if hasattr(m, "get_marker")]
+    assert len(dots) == 4  # -6, -12, -18, -24 h on the central path
+    widths = sorted(float(np.max(line.get_linewidths())) for line in drawn["lines"])
+    assert widths[-1] > 3 * widths[0]  # central bold, members thin
+    fig, ax = drawn["figure"], drawn["axes"]
+    fig.canvas.draw()
+    legend = ax.get_legend().get_window_extent()
+    assert legend.y1 <= ax.get_window_extent().y0  # below the map, never over the tracks
+    maps.save_figure(fig, tmp_path / "tracks.png")
+    assert (tmp_path / "tracks.png").read_bytes()[:4] == b"\x89PNG"
