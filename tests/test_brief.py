@@ -92,22 +92,23 @@ def demo_brief(tmp_path_factory):
     return {"folder": folder, **_brief(folder, config)}
 
 
-@pytest.fixture(scope="module")
-def gfs_brief(tmp_path_factory):
-    path = data_file(GFS)
-    folder = tmp_path_factory.mktemp("brief-gfs")
-    config = _config(folder, "Harbour Point", 50.0, 5.0, str(path), "actual", [850, 700],
+def _real_brief(tmp_path_factory, name: str, wind: str, levels) -> dict:
+    """The briefing at Harbour Point (50 N, 5 E; invented name) from one shared-data file."""
+    path = data_file(name)
+    folder = tmp_path_factory.mktemp("brief-real")
+    config = _config(folder, "Harbour Point", 50.0, 5.0, str(path), wind, levels,
                      [40.0, 60.0], [-10.0, 20.0])
     return {"file": path, **_brief(folder, config)}
+
+
+@pytest.fixture(scope="module")
+def gfs_brief(tmp_path_factory):
+    return _real_brief(tmp_path_factory, GFS, "actual", [850, 700])
 
 
 @pytest.fixture(scope="module")
 def era5_brief(tmp_path_factory):
-    path = data_file(ERA5)
-    folder = tmp_path_factory.mktemp("brief-era5")
-    config = _config(folder, "Harbour Point", 50.0, 5.0, str(path), "geostrophic", [850, 500],
-                     [40.0, 60.0], [-10.0, 20.0])
-    return {"file": path, **_brief(folder, config)}
+    return _real_brief(tmp_path_factory, ERA5, "geostrophic", [850, 500])
 
 
 # ----------------------------------------------------------------------------- contents

@@ -110,3 +110,27 @@ def test_trajectory_map_marks_every_6_hours_and_keeps_the_legend_outside(tmp_pat
     assert legend.y1 <= ax.get_window_extent().y0  # below the map, never over the tracks
     maps.save_figure(fig, tmp_path / "tracks.png")
     assert (tmp_path / "tracks.png").read_bytes()[:4] == b"\x89PNG"
+
+
+def test_advect_and_track_draw_maps_of_an_area(tmp_path, capsys):
+    """``advect --map --area`` and ``track --map --area`` write PNG maps (command line)."""
+    from parcelcast.cli import main
+    from parcelcast.trajectories.analytic import solid_body_dataset
+
+    ds = solid_body_dataset(hours=12, step_hours=6, resolution=2.0, levels_hpa=(850.0, 500.0))
+    for name, std in (("u", "eastward_wind"), ("v", "northward_wind"), ("temperature", "air_temperature")):
+        ds[name].attrs.update(standard_name=std)
+    ds["temperature"].attrs["units"] = "K"
+    ds.lat.attrs.update(standard_name="latitude", units="degrees_north")
+    ds.lon.attrs.update(standard_name="longitude", units="degrees_east")
+    ds.level.attrs.update(units="Pa")
+    path = tmp_path / "solid.nc"
+    ds.to_netcdf(path)
+    assert main(["advect", str(path), "--level", "850", "--at", "50,5", "--map", str(tmp_path / "a.png"),
+                 "--area", "40,60,-10,20"]) == 0
+    assert main(["track", str(path), "--from", "50,5", "--level", "850", "--back", "12",
+                 "--map", str(tmp_path / "t.png"), "--area", "35,65,-40,20"]) == 0
+    for name in ("a.png", "t.png"):
+        assert (tmp_path / name).read_bytes()[:4] == b"\x89PNG"
+    text = capsys.readouterr().out
+    assert "\u00b0C" in text and " kt" in text  # people read degC and knots

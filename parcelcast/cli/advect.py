@@ -170,6 +170,7 @@ def write_fields(fields, path) -> None:
 
 
 def print_text(summary: dict) -> None:
+    from parcelcast import formatting
     from parcelcast.selection import level_label
 
     level = summary["level_hPa"] if summary["level_hPa"] is not None else summary["level"]
@@ -178,8 +179,9 @@ def print_text(summary: dict) -> None:
     if "lat" in summary:
         lines += [
             f"  point            {summary['lat']:.3f}, {summary['lon']:.3f}",
-            f"  temperature      {_fmt(summary['temperature_K'], 'K')}",
-            f"  wind u, v        {_fmt(summary['u_m_s'], 'm/s')}, {_fmt(summary['v_m_s'], 'm/s')}",
+            f"  temperature      {formatting.temperature_text(summary['temperature_K'])}",
+            f"  wind             {formatting.wind_text(summary['u_m_s'], summary['v_m_s'])}"
+            f"  (u {_fmt(summary['u_m_s'], 'm/s')}, v {_fmt(summary['v_m_s'], 'm/s')})",
             f"  advection        {_fmt(summary['advection_K_per_h'], 'K/h')}  (positive = warm)",
         ]
         if summary["missing_reason"]:

@@ -192,6 +192,8 @@ def _series(ds, args, hours):
 
 
 def _print_text(summary: dict, path) -> None:
+    from parcelcast import formatting
+
     a = summary["arrival"]
     if summary["incomplete"]:
         print(summary["incomplete"])
@@ -200,7 +202,7 @@ def _print_text(summary: dict, path) -> None:
     central = summary["members"][0]
     print(f"central path ({central['status']}):")
     for p in central["points"]:
-        t = "" if p["temperature_K"] is None else f"  T {p['temperature_K']:.1f} K"
+        t = "" if p["temperature_K"] is None else f"  T {formatting.temperature_text(p['temperature_K'])}"
         print(f"  {p['time']}  {p['lat']:8.3f} {p['lon']:9.3f}  {p['pressure_hPa']:7.1f} hPa{t}")
     n = len(summary["members"])
     if n > 1:
