@@ -138,8 +138,9 @@ def finish_map(ax, area) -> str:
     from parcelcast.render.geography import draw_geography
 
     name = draw_geography(ax, area)
-    grid = ax.gridlines(draw_labels=True, x_inline=False, y_inline=False, linewidth=0.4,
-                        color="0.35", alpha=0.6, linestyle=":")
+    # the parallels curve on a Lambert map: drawn clearly enough to follow from the edge labels
+    grid = ax.gridlines(draw_labels=True, x_inline=False, y_inline=False, linewidth=0.6,
+                        color="0.3", alpha=0.7, linestyle=":")
     grid.top_labels = grid.right_labels = False
     grid.rotate_labels = False
     grid.xlabel_style = grid.ylabel_style = {"size": 8}
@@ -315,9 +316,9 @@ def advection_map(level_fields, path=None, station=None, area=None, ax=None, tit
                        format=lambda v, _: "0" if abs(v) < 1e-12 else f"{v:+.{_decimals(step)}f}")
     bar.set_label("temperature advection \u2212V\u00b7\u2207T (K/h): red = warm, blue = cold")
     bar.ax.legend(handles=[Patch(facecolor=MISSING_GREY, edgecolor="0.3",
-                                 label="below ground or no data")],
+                                 label="grey: below ground, missing or outside the grid")],
                   loc="upper left", bbox_to_anchor=(0.0, -3.0), fontsize=8, frameon=False)
-    bar.ax.text(1.0, -3.3, DISCLAIMER_SHORT, transform=bar.ax.transAxes, ha="right", va="top",
+    bar.ax.text(0.0, -5.0, DISCLAIMER_SHORT, transform=bar.ax.transAxes, ha="left", va="top",
                 fontsize=7, color="0.35")
     from parcelcast.selection import level_label
 

@@ -103,7 +103,7 @@ def split_maps_figure(review: dict, path=None):
         mark_station(ax, (case.station_name, case.lat, case.lon), named=False)
         ax.set_title(_PANEL_TITLES[name], fontsize=9)
     fig.colorbar(drawn[names[0]], ax=fig.axes, shrink=0.8, orientation="horizontal", aspect=50,
-                 label="K over the window: red warming, blue cooling; grey: missing")
+                 label="K over the window: red warming, blue cooling; grey: missing or outside the grid")
     fig.suptitle(f"{case.station_name} (star), {case.level_hpa:g} hPa: split over "
                  f"{formatting.time_text(case.start)} to {formatting.time_text(case.end)}\n"
                  "guidance, not an official forecast", fontsize=10)
