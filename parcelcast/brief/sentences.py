@@ -8,10 +8,6 @@ from __future__ import annotations
 
 from parcelcast import formatting
 
-#: the Eulerian and Lagrangian advective parts differing by this much or more are called out
-#: (common practice: about the size of a day's analysis error at 850 hPa)
-DISAGREEMENT_K = 1.0
-
 
 def level_sentence(level: dict) -> str:
     """``"At 850 hPa: cold advection of 0.31 K/h; 6.9 °C, wind 250° 30 kt."``"""
@@ -67,10 +63,11 @@ def split_sentence(split: dict) -> str:
             f"({'rising or sinking air, ' if split['vertical_available'] else ''}heating or cooling "
             "on the spot, and errors).")
     lagrangian = split["lagrangian"]["advective_K"]
-    difference = split["advective_difference_K"]
-    if lagrangian is not None and difference is not None and abs(difference) >= DISAGREEMENT_K:
+    consistency = split.get("consistency") or {}
+    if lagrangian is not None and consistency.get("consistent") is False:  # the split's own verdict
         text += (f" Following the air instead, {formatting.difference_text(lagrangian)} was carried in: "
-                 f"the two views differ by {abs(difference):.1f} K, so read the split with care.")
+                 f"the two views differ by {abs(consistency['eulerian_minus_lagrangian_K']):.1f} K, "
+                 "more than the split accepts, so read it with care.")
     return text
 
 
