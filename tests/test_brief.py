@@ -143,6 +143,7 @@ def _check_levels_agree_with_advect(doc, path, wind):
                     "--at", f"{doc['station']['lat']},{doc['station']['lon']}"])
         assert at["time"] == doc["valid_time"]
         assert level["advection_K_per_h"] == at["advection_K_per_h"]
+        assert level["missing_points_by_reason"] == at["missing_points_by_reason"]
         assert level["temperature_K"] == at["temperature_K"]
         assert level["temperature_degC"] == pytest.approx(at["temperature_K"] - 273.15, abs=0.006)
         assert (level["u_m_s"], level["v_m_s"]) == (at["u_m_s"], at["v_m_s"])
@@ -199,7 +200,8 @@ def test_era5_briefing_has_a_24h_back_trajectory(era5_brief):
     assert traj["origin_lat"] == pytest.approx(origin["lat"], abs=1e-3)
     assert traj["origin_lon"] == pytest.approx(((origin["lon"] + 180) % 360) - 180, abs=1e-3)
     assert traj["origin_pressure_hPa"] == pytest.approx(origin["pressure_hPa"], abs=0.01)
-    assert traj["complete"] is (track["members"][0]["status"] == "ok")
+    assert traj["complete"] is track["complete"]
+    assert traj["hours_covered"] == track["hours_covered"]
     split = _json(["split", str(path), "--at", "50.0,5.0", "--level", "850", "--wind", "geostrophic",
                    "--start", "2017-01-01T12", "--end", "2017-01-02T12"])
     for key in ("observed_change_K", "advective_K", "vertical_K", "residual_K"):

@@ -14,6 +14,7 @@ Values are SI or named with their unit in the key (``temperature_degC``, ``wind_
 
 from __future__ import annotations
 
+import json
 import warnings
 
 import numpy as np
@@ -24,7 +25,7 @@ from parcelcast.errors import ParcelcastError, ParcelcastWarning
 
 #: roles the briefing reads (those absent from the files are simply not there)
 ROLES = ("temperature", "u", "v", "geopotential", "omega", "relative_humidity",
-         "specific_humidity", "surface_pressure", "near_surface_temperature")
+         "specific_humidity", "surface_pressure", "orography", "near_surface_temperature")
 
 
 def _number(value, digits: int = 4):
@@ -111,6 +112,7 @@ def level_entry(ds, config: BriefConfig, level_hpa: float, valid_time) -> dict:
         "wind_speed_kt": _number(formatting.knots(np.hypot(u, v)), 1) if None not in (u, v) else None,
         "advection_K_per_h": _number(member_mean(adv), 4),
         "missing_points_in_field": int(fields.attrs["missing_points"]),
+        "missing_points_by_reason": json.loads(fields.attrs.get("missing_by_reason", "{}")),
         "missing_points_in_area": _missing_in_area(fields, config.map_area()),
         "_fields": member_mean(fields),
     }
@@ -151,6 +153,7 @@ def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
     """Back trajectories arriving at the station at the valid time, on the first level."""
     from parcelcast.sampling import great_circle_km
     from parcelcast.trajectories import compute_trajectories
+    from parcelcast.trajectories.completeness import group_completeness
     from parcelcast.units import Q_
 
     level = config.levels_hpa[0]
@@ -170,12 +173,8 @@ def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
     central = int(np.flatnonzero(paths["central"].values)[0])
     last = int(paths["row_size"].values[central]) - 1
     origin_time = paths["time"].values[central, last]
-    wanted = np.datetime64(valid_time, "ns") - np.timedelta64(int(round(config.trajectory_hours * 3600)), "s")
     statuses = paths["status_name"].values
-    full = (statuses == "ok") & (paths["time"].values[np.arange(statuses.size),
-                                                      paths["row_size"].values - 1] == wanted)
-    if "complete" in paths:  # completeness flag of the trajectory module, when it provides one
-        full = full & paths["complete"].values.astype(bool)
+    done = group_completeness(paths, 0)  # as `track --json`: every member covers the hours asked
     lat0, lon0 = float(paths["lat"].values[central, last]), float(paths["lon"].values[central, last])
     t_now = paths["temperature"].values[central, 0] if "temperature" in paths else np.nan
     t_then = paths["temperature"].values[central, last] if "temperature" in paths else np.nan
@@ -184,7 +183,7 @@ def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
         "available": True,
         "arrival_time": valid_time,
         "origin_time": origin_time,
-        "hours_covered": _number((np.datetime64(valid_time, "ns") - origin_time) / np.timedelta64(1, "h"), 2),
+        "hours_covered": done["hours_covered"],
         "origin_lat": _number(lat0, 3),
         "origin_lon": _number(((lon0 + 180.0) % 360.0) - 180.0, 3),
         "origin_pressure_hPa": _number(paths["pressure"].values[central, last] / 100.0, 2),
@@ -194,9 +193,10 @@ def trajectory_entry(ds, config: BriefConfig, valid_time) -> dict:
         "distance_km": _number(distance, 1),
         "bearing_deg": _number(_bearing(config.lat, config.lon, lat0, lon0), 1),
         "central_status": str(statuses[central]),
-        "complete": bool(full[central]),
-        "members": int(statuses.size),
-        "members_complete": int(full.sum()),
+        "complete": done["complete"],
+        "members": done["trajectories"],
+        "members_complete": done["trajectories_complete"],
+        "member_statuses": done["member_statuses"],
         "spread_km": _number(_last_finite(paths["spread"].values[0]) / 1000.0, 1),
         "spread_fraction": _number(_last_finite(paths["spread_fraction"].values[0]), 3),
         "_paths": paths,
