@@ -123,6 +123,7 @@ def _check_outputs(run):
     for page in (html, markdown):
         assert "not an official forecast" in page and "national weather service" in page
     assert DISCLAIMER == doc["disclaimer"]
+    assert _headings(html, markdown)[0] == _headings(html, markdown)[1]  # one template, two pages
     for figure in doc["figures"]:
         assert (out / figure["file"]).read_bytes()[:4] == b"\x89PNG"
         assert f"]({figure['file']})" in markdown  # Markdown beside its images
@@ -135,6 +136,14 @@ def _check_outputs(run):
     assert not re.search(r"(src|href)\s*=\s*[\"'](?!data:)|url\(|https?://|//cdn", outside)
     assert not list(out.parent.glob(".briefing.*"))  # no temporary folder left beside it
     return doc
+
+
+def _headings(html: str, markdown: str) -> tuple[list[str], list[str]]:
+    """Section headings of the HTML page and of the Markdown page, in order."""
+    import html as html_module
+
+    return ([html_module.unescape(h) for h in re.findall(r"<h2>(.*?)</h2>", html)],
+            re.findall(r"^## (.*)$", markdown, flags=re.M))
 
 
 def _check_levels_agree_with_advect(doc, path, wind):

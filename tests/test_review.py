@@ -37,6 +37,12 @@ def _check_outputs(out):
         assert (out / name).is_file() and (out / name).stat().st_size > 0, name
     assert DISCLAIMER in (out / "report.md").read_text()
     assert "not an official forecast" in (out / "report.html").read_text()
+    # one template for both pages: the same sections in the same order (the Method too)
+    import re
+
+    html_sections = re.findall(r"<h2>(.*?)</h2>", (out / "report.html").read_text())
+    md_sections = re.findall(r"^## (.*)$", (out / "report.md").read_text(), flags=re.M)
+    assert html_sections == md_sections and "Method" in md_sections
     with open(out / "timeline.csv", newline="") as handle:
         rows = list(csv.DictReader(handle))
     for row in rows:
