@@ -67,10 +67,17 @@ def test_surface_level_reported_as_such_and_no_matplotlib_without_plot(record):
     assert "near_surface_temperature" in done.stderr and "False" in done.stderr
 
 
-def test_bad_window_and_level_are_refused(record):
-    done = _run(record, "--at", "50,10", "--level", "850", "--window", "500")
-    assert done.returncode == 2 and "does not fit in the record" in done.stderr
-    done = _run(record, "--at", "50,10", "--level", "600", "--window", "24")
-    assert done.returncode == 2 and "600 hPa" in done.stderr and "850" in done.stderr
-    done = _run(record, "--at", "50,10", "--level", "high", "--window", "24")
-    assert done.returncode == 2 and "'surface'" in done.stderr
+def test_bad_input_is_refused_with_a_reason(record, capsys):
+    from parcelcast.cli import main
+
+    def refused(*args):
+        assert main(["climate", str(record), *args]) == 2
+        return capsys.readouterr().err
+
+    assert "does not fit in the record" in refused("--at", "50,10", "--level", "850", "--window", "500")
+    err = refused("--at", "50,10", "--level", "600", "--window", "24")
+    assert "600 hPa" in err and "850" in err
+    assert "--out PATH.nc" in refused("--level", "850", "--window", "24")  # maps need a file
+    with pytest.raises(SystemExit):
+        main(["climate", str(record), "--at", "50,10", "--level", "high", "--window", "24"])
+    assert "'surface'" in capsys.readouterr().err

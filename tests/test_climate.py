@@ -148,3 +148,25 @@ def test_monthly_summary_share_is_the_regression_slope():
     non_advective = np.polyfit(observed[:29], observed[:29] - advective[:29], 1)[0]
     assert feb["advective_share"] + non_advective == pytest.approx(1.0, rel=1e-10)
     assert feb["advective"]["spread_K"] == pytest.approx(np.std(advective[:29], ddof=1))
+
+
+def test_split_maps_equal_the_in_memory_split_fields(wave_file, wave_in_memory, tmp_path):
+    """Whole-area maps, window by window from lazy input, and as written to NetCDF."""
+    import xarray as xr
+
+    from parcelcast.budget import split_fields
+    from parcelcast.climate import climate_maps
+    from parcelcast.climate.fields import maps_writer
+
+    out = tmp_path / "maps.nc"
+    with maps_writer(out, {"level": "850 hPa"}) as write:
+        for k, maps in enumerate(climate_maps(wave_file, 850.0, 72, time_chunk=4)):
+            ref = split_fields(wave_in_memory, 850.0, maps.attrs["start"], maps.attrs["end"])
+            for name in ("observed_change", "advective", "vertical", "residual"):
+                np.testing.assert_allclose(maps[name].values, ref[name].values, atol=1e-12, rtol=0)
+            write(maps)
+    assert k == 3
+    with xr.open_dataset(out) as written:
+        assert written.sizes["time"] == 4 and written["advective"].dims == ("time", "lat", "lon")
+        np.testing.assert_allclose(written["residual"].values[-1], ref["residual"].values,
+                                   atol=1e-5, rtol=0)  # stored as float32

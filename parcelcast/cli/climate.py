@@ -19,7 +19,9 @@ def _level(text: str):
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_input_arguments(parser)
-    parser.add_argument("--at", type=lat_lon, required=True, metavar="LAT,LON", help="the station")
+    parser.add_argument("--at", type=lat_lon, metavar="LAT,LON",
+                        help="the station; without it, the split maps over the whole area go to "
+                        "--out PATH.nc")
     parser.add_argument("--level", type=_level, required=True, metavar="HPA|surface",
                         help="pressure level (hPa), or 'surface' (2-m temperature, 10-m wind)")
     parser.add_argument("--window", type=float, required=True, metavar="HOURS",
@@ -29,8 +31,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--scheduler", metavar="ADDRESS",
                         help="run on a dask.distributed cluster (e.g. tcp://host:8786); "
                         "the workers need this parcelcast version and read access to the files")
-    parser.add_argument("--time-chunk", type=int, default=24, metavar="N",
-                        help="analysis times read per chunk (default 24)")
+    parser.add_argument("--time-chunk", type=int, metavar="N",
+                        help="analysis times read per chunk (default 8 at a station, 1 for maps)")
     parser.add_argument("--json", action="store_true", help="print JSON")
     parser.add_argument("--out", metavar="PATH.csv|PATH.nc", help="write every window (streamed)")
     parser.add_argument("--plot", metavar="PNG", help="draw the parts' distribution by month")
@@ -43,6 +45,8 @@ def run(args) -> int:
     from parcelcast.climate import MonthlySummary, climate_split
     from parcelcast.climate.output import window_writer
 
+    if args.at is None:
+        return run_maps(args)
     rows = climate_split(args.files, *args.at, args.level, args.window, args.wind,
                          args.scheduler, dict(args.var), args.time_chunk)
     header = _header(args)
@@ -69,6 +73,36 @@ def run(args) -> int:
     return 0
 
 
+def run_maps(args) -> int:
+    """Without --at: the split maps of every window, streamed to a NetCDF file."""
+    from parcelcast.cli import DISCLAIMER
+    from parcelcast.climate import climate_maps
+    from parcelcast.climate.fields import maps_writer
+    from parcelcast.errors import ParcelcastError
+
+    if not args.out or not args.out.lower().endswith(".nc"):
+        raise ParcelcastError("without --at, give --out PATH.nc for the split maps of every window")
+    header = {k: v for k, v in _header(args).items() if k not in ("lat", "lon")}
+    windows, skipped = 0, []
+    with maps_writer(args.out, header) as write:
+        for maps in climate_maps(args.files, args.level, args.window, args.wind, args.scheduler,
+                                 dict(args.var), args.time_chunk):
+            write(maps)
+            if "missing" in maps.attrs:
+                skipped.append({"start": maps.attrs["start"] + "Z", "end": maps.attrs["end"] + "Z",
+                                "reason": maps.attrs["missing"]})
+            else:
+                windows += 1
+    result = {**header, "out": args.out, "windows_written": windows, "windows_skipped": skipped,
+              "disclaimer": DISCLAIMER}
+    if args.json:
+        print_json(result)
+    else:
+        print(f"Split maps of {windows} window(s) written to {args.out}"
+              + (f"; {len(skipped)} skipped (gaps)" if skipped else "") + f"\n{DISCLAIMER}")
+    return 0
+
+
 DEFINITIONS = {
     "month": "calendar month of the window's start (UTC)",
     "spread_K": "standard deviation of the part over the month's windows (ddof=1)",
@@ -80,7 +114,8 @@ DEFINITIONS = {
 
 def _header(args) -> dict:
     surface = args.level == "surface"
-    return {"lat": args.at[0], "lon": args.at[1],
+    lat, lon = args.at if args.at is not None else (None, None)
+    return {"lat": lat, "lon": lon,
             "level": "surface" if surface else f"{args.level:g} hPa",
             "level_hPa": None if surface else args.level,
             "wind": args.wind, "window_h": args.window}

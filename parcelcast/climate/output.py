@@ -63,13 +63,7 @@ def _netcdf_writer(path: Path, attrs: dict):
     import netCDF4
 
     with netCDF4.Dataset(path, "w", format="NETCDF4") as nc:
-        nc.createDimension("time", None)
-        nc.createDimension("bounds", 2)
-        time = nc.createVariable("time", "f8", ("time",))
-        time.setncatts({"standard_name": "time", "units": "hours since 1970-01-01 00:00:00",
-                        "calendar": "proleptic_gregorian", "bounds": "time_bounds",
-                        "long_name": "start of the window (UTC)"})
-        bounds = nc.createVariable("time_bounds", "f8", ("time", "bounds"))
+        time, bounds = define_window_time(nc)
         parts = {}
         for p in PARTS:
             var = nc.createVariable(p.removesuffix("_K"), "f8", ("time",), fill_value=np.nan)
@@ -81,10 +75,7 @@ def _netcdf_writer(path: Path, attrs: dict):
         nc.setncatts({"Conventions": "CF-1.10", **{k: str(v) for k, v in attrs.items()}})
 
         def write(row: dict) -> None:
-            k = len(nc.dimensions["time"])
-            start, end = (_hours(row[key]) for key in ("start", "end"))
-            time[k] = start
-            bounds[k, :] = [start, end]
+            k = append_window_time(time, bounds, row["start"], row["end"])
             for p in PARTS:
                 parts[p][k] = np.nan if row[p] is None else float(row[p])
             reason[k] = "; ".join(f"{a}: {b}" for a, b in row["missing"].items())
@@ -92,6 +83,22 @@ def _netcdf_writer(path: Path, attrs: dict):
         yield write
 
 
-def _hours(when) -> float:
-    return float((np.datetime64(when, "ns") - np.datetime64("1970-01-01T00:00", "ns"))
-                 / np.timedelta64(1, "h"))
+def define_window_time(nc):
+    """The unlimited CF ``time`` (start of each window) and its ``time_bounds`` in ``nc``."""
+    nc.createDimension("time", None)
+    nc.createDimension("bounds", 2)
+    time = nc.createVariable("time", "f8", ("time",))
+    time.setncatts({"standard_name": "time", "units": "hours since 1970-01-01 00:00:00",
+                    "calendar": "proleptic_gregorian", "bounds": "time_bounds",
+                    "long_name": "start of the window (UTC)"})
+    return time, nc.createVariable("time_bounds", "f8", ("time", "bounds"))
+
+
+def append_window_time(time, bounds, start, end) -> int:
+    """Append one window's start and bounds; returns its index along ``time``."""
+    k = len(time)
+    hours = [float((np.datetime64(t, "ns") - np.datetime64("1970-01-01T00:00", "ns"))
+                   / np.timedelta64(1, "h")) for t in (start, end)]
+    time[k] = hours[0]
+    bounds[k, :] = hours
+    return k

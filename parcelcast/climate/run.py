@@ -14,11 +14,14 @@ from parcelcast.climate.level import level_view
 from parcelcast.climate.neighbourhood import level_neighbourhood, neighbourhood
 from parcelcast.climate.windows import blocks, bounding_slice, consecutive_windows, usual_step
 
-#: analysis times per dask chunk when the caller gives none
-DEFAULT_TIME_CHUNK = 24
+#: analysis times per dask chunk when the caller gives none.  The reading and the unit
+#: conversion of a chunk happen before the cut (whole horizontal slabs), so a task holds its
+#: chunks whole: a station's windows are grouped by 8 times, a map window reads its two times, one chunk each.
+STATION_TIME_CHUNK = 8
+MAPS_TIME_CHUNK = 1
 
 
-def open_record(paths, level, wind: str = "actual", overrides=None, time_chunk=DEFAULT_TIME_CHUNK):
+def open_record(paths, level, wind: str = "actual", overrides=None, time_chunk=STATION_TIME_CHUNK):
     """Open analysis files lazily (dask-backed, ``time_chunk`` times per chunk) with the
     roles the split at ``level`` needs."""
     from parcelcast.climate.level import roles_needed
@@ -75,7 +78,7 @@ def station_rows(ds, lat: float, lon: float, level, window_hours: float, wind: s
             part = box.isel(time=bounding_slice(times, group[0], group[-1]))
             yield task(part, lat, lon, view.level_hpa, wind, group, view.missing, step)
 
-    for rows in _in_order(tasks(), scheduler):
+    for rows in in_order(tasks(), scheduler):
         yield from rows
 
 
@@ -87,14 +90,15 @@ def _windows_per_chunk(ds, window_hours: float, step) -> int:
     return max(int(chunk * (step / np.timedelta64(1, "h")) // window_hours), 1)
 
 
-def _in_order(tasks: Iterator, scheduler: str | None) -> Iterator:
-    """Compute delayed tasks a batch at a time (as many as the workers can take) and yield
+def in_order(tasks: Iterator, scheduler: str | None, per_thread: int = 2) -> Iterator:
+    """Compute delayed tasks a batch at a time (``per_thread`` per worker thread) and yield
     their results in the order of ``tasks``."""
     import dask
 
     from parcelcast.climate.scheduler import tasks_run_on
 
-    with tasks_run_on(scheduler) as in_flight:
+    with tasks_run_on(scheduler) as threads:
+        in_flight = per_thread * threads
         batch = []
         for t in tasks:
             batch.append(t)
