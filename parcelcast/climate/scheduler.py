@@ -13,28 +13,32 @@ import contextlib
 from parcelcast.errors import ParcelcastError
 
 
+#: seconds to wait for the scheduler to answer
+CONNECT_TIMEOUT_S = 10.0
+
+
 @contextlib.contextmanager
-def tasks_run_on(address: str | None, timeout_s: float = 20.0):
+def tasks_run_on(address: str | None):
     """Context in which ``dask.compute`` runs on ``address`` (or locally); yields the
-    number of tasks worth keeping in flight (twice the worker threads)."""
+    number of worker threads."""
     if address is None:
         import os
 
         import dask
 
         with dask.config.set(scheduler="threads"):
-            yield 2 * (os.cpu_count() or 1)
+            yield os.cpu_count() or 1
         return
     try:
         from distributed import Client
     except ImportError as exc:  # pragma: no cover - distributed is a dependency
         raise ParcelcastError("--scheduler needs the 'distributed' package") from exc
     try:
-        client = Client(address, timeout=timeout_s, set_as_default=True)
+        client = Client(address, timeout=CONNECT_TIMEOUT_S, set_as_default=True)
     except (OSError, TimeoutError) as exc:
         raise ParcelcastError(f"could not reach the dask scheduler at {address}: {exc}") from None
     try:
         threads = sum(client.nthreads().values()) or 1
-        yield 2 * threads
+        yield threads
     finally:
         client.close()
