@@ -81,14 +81,17 @@ def test_neighbourhood_stops_at_a_regional_grid_edge(wave_in_memory):
     assert cut["advective_K"] == pytest.approx(whole["advective_K"], abs=1e-12, rel=0)
 
 
-def test_chunked_run_equals_the_in_memory_split_window_by_window(wave_file, wave_in_memory):
-    """Lazy (dask, 5 times per chunk, 2 windows per task) against the split in memory."""
+@pytest.mark.parametrize("hours, count", [(24, 12), (9, 32)])  # 9 h: ends between analyses
+def test_chunked_run_equals_the_in_memory_split_window_by_window(wave_file, wave_in_memory,
+                                                                 hours, count):
+    """Lazy (dask, 5 times per chunk, 3 windows per task), all windows of a task at once,
+    against the existing split of each window on the whole grid in memory."""
     from parcelcast.climate import open_record, station_rows
 
     lazy = open_record(wave_file, 850.0, time_chunk=5)
     assert lazy["temperature"].chunks[0][0] == 5  # really dask-backed, chunked along time
-    rows = list(station_rows(lazy, 50.0, 10.0, 850.0, 24, windows_per_task=2))
-    assert len(rows) == 12
+    rows = list(station_rows(lazy, 50.0, 10.0, 850.0, hours, windows_per_task=3))
+    assert len(rows) == count
     for row in rows:
         from parcelcast.climate import Window
 
@@ -100,7 +103,8 @@ def test_chunked_run_equals_the_in_memory_split_window_by_window(wave_file, wave
 
 def test_residual_is_the_known_heating(tmp_path):
     """Without omega the residual of each day is the imposed heating H x 24 h (the wave is
-    carried by the wind); the trapezoid over 6-hourly analyses leaves a small error."""
+    carried by the wind); fields interpolated linearly in time between 6-hourly analyses leave
+    a small error (about 0.002 K a day here, measured)."""
     from parcelcast.climate import climate_split
 
     path = tmp_path / "wave0.nc"
@@ -108,7 +112,7 @@ def test_residual_is_the_known_heating(tmp_path):
     rows = list(climate_split(path, 45.0, 20.0, 850.0, 24))
     for row in rows:
         assert row["vertical_K"] == pytest.approx(0.0, abs=1e-12)
-        assert row["residual_K"] == pytest.approx(HEATING_K_PER_S * 86400.0, abs=0.03)
+        assert row["residual_K"] == pytest.approx(HEATING_K_PER_S * 86400.0, abs=0.01)
         assert abs(row["advective_K"]) > 0.1  # the wave really moves past the station
 
 

@@ -54,3 +54,18 @@ def test_an_unreachable_scheduler_is_a_clear_error(tmp_path, monkeypatch):
     wave_record(days=1).to_netcdf(path)
     with pytest.raises(ParcelcastError, match="could not reach the dask scheduler at tcp://127.0.0.1:9"):
         list(climate_split(path, 50.0, 10.0, 850.0, 12, scheduler="tcp://127.0.0.1:9"))
+
+
+def test_command_line_scheduler_option(cluster, tmp_path, capsys):
+    import json
+
+    from parcelcast.cli import main
+
+    path = tmp_path / "wave.nc"
+    wave_record(days=3, omega_pa_s=0.2).to_netcdf(path)
+    args = ["climate", str(path), "--at", "50,10", "--level", "850", "--window", "24", "--json"]
+    outputs = []
+    for extra in ([], ["--scheduler", cluster.scheduler_address]):
+        assert main(args + extra) == 0
+        outputs.append(json.loads(capsys.readouterr().out))
+    assert outputs[0] == outputs[1] and len(outputs[0]["windows"]) == 3

@@ -58,7 +58,7 @@ def field_windows(ds, level, window_hours: float, wind: str = "actual",
                 yield task(cut.isel(time=bounding_slice(times, w, w)), view.level_hpa,
                            w.start, w.end, wind)
 
-    yield from in_order(tasks(), scheduler, per_thread=1)
+    yield from in_order(tasks(), scheduler)
 
 
 def _skipped(start, end, reason):

@@ -32,6 +32,7 @@ def plot_parts_by_month(values: dict, title: str = "", ax=None):
         data = [values[m][part][np.isfinite(values[m][part])] for m in months]
         shown = [i for i, d in enumerate(data) if d.size]
         if not shown:
+            ax.plot([], [], " ", label=f"{_LABELS[part]}: no values")
             continue
         positions = [i + (k - (len(PARTS) - 1) / 2) * width for i in shown]
         ax.boxplot([data[i] for i in shown], positions=positions, widths=width * 0.9,
@@ -41,6 +42,7 @@ def plot_parts_by_month(values: dict, title: str = "", ax=None):
         ax.plot([], [], "s", color=_COLOURS[part], alpha=0.6, label=_LABELS[part])
     ax.axhline(0.0, color="0.6", lw=0.8)
     ax.set_xticks(range(len(months)), months)
+    ax.set_xlim(-0.6, len(months) - 0.4)
     ax.set_ylabel("change over the window (K)")
     ax.set_title(title)
     ax.legend(loc="best", fontsize="small")

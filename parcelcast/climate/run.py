@@ -14,11 +14,14 @@ from parcelcast.climate.level import level_view
 from parcelcast.climate.neighbourhood import level_neighbourhood, neighbourhood
 from parcelcast.climate.windows import blocks, bounding_slice, consecutive_windows, usual_step
 
-#: analysis times per dask chunk when the caller gives none.  The reading and the unit
-#: conversion of a chunk happen before the cut (whole horizontal slabs), so a task holds its
-#: chunks whole: a station's windows are grouped by 8 times, a map window reads its two times, one chunk each.
+#: analysis times per dask chunk when the caller gives none.  A chunk is read and converted
+#: whole (whole horizontal slabs) before the cut, so it sets the memory per worker thread:
+#: 8 times for a station, 1 for maps (a map window then holds just its two times).
 STATION_TIME_CHUNK = 8
 MAPS_TIME_CHUNK = 1
+#: analysis times one station task covers: its chunks are read and cut one by one, and only
+#: the 4 x 4 neighbourhood of all of them is held, so a task can span many chunks
+TIMES_PER_TASK = 64
 
 
 def open_record(paths, level, wind: str = "actual", overrides=None, time_chunk=STATION_TIME_CHUNK):
@@ -52,7 +55,8 @@ def station_rows(ds, lat: float, lon: float, level, window_hours: float, wind: s
     scheduler : str, optional
         Address of a dask.distributed scheduler; None runs on local threads.
     windows_per_task : int, optional
-        Windows computed by one task (default: as many as one time chunk covers).
+        Windows computed by one task (default: those spanning :data:`TIMES_PER_TASK`
+        analysis times).
 
     Yields
     ------
@@ -70,7 +74,7 @@ def station_rows(ds, lat: float, lon: float, level, window_hours: float, wind: s
     times = box["time"].values
     windows = consecutive_windows(times, window_hours)
     step = usual_step(times)
-    per_task = windows_per_task or _windows_per_chunk(box, window_hours, step)
+    per_task = windows_per_task or _windows_per_task(window_hours, step)
     task = dask.delayed(block_rows, pure=True)
 
     def tasks():
@@ -82,23 +86,21 @@ def station_rows(ds, lat: float, lon: float, level, window_hours: float, wind: s
         yield from rows
 
 
-def _windows_per_chunk(ds, window_hours: float, step) -> int:
-    """Windows spanning about one time chunk of the input (at least one)."""
+def _windows_per_task(window_hours: float, step) -> int:
+    """Windows spanning about :data:`TIMES_PER_TASK` analysis times (at least one)."""
     import numpy as np
 
-    chunk = max(ds.chunks.get("time", (ds.sizes["time"],))[0], 1) if ds.chunks else ds.sizes["time"]
-    return max(int(chunk * (step / np.timedelta64(1, "h")) // window_hours), 1)
+    return max(int(TIMES_PER_TASK * (step / np.timedelta64(1, "h")) // window_hours), 1)
 
 
-def in_order(tasks: Iterator, scheduler: str | None, per_thread: int = 2) -> Iterator:
-    """Compute delayed tasks a batch at a time (``per_thread`` per worker thread) and yield
-    their results in the order of ``tasks``."""
+def in_order(tasks: Iterator, scheduler: str | None) -> Iterator:
+    """Compute delayed tasks a batch at a time (one per worker thread: each task's chunks are
+    shared among the threads too) and yield their results in the order of ``tasks``."""
     import dask
 
     from parcelcast.climate.scheduler import tasks_run_on
 
-    with tasks_run_on(scheduler) as threads:
-        in_flight = per_thread * threads
+    with tasks_run_on(scheduler) as in_flight:
         batch = []
         for t in tasks:
             batch.append(t)

@@ -1,9 +1,14 @@
-"""The split at one station for each window of a block of times (runs inside one task).
+"""The split at one station for all the windows of a block of times (runs inside one task).
 
-Each window's parts come from :func:`parcelcast.budget.eulerian_split` on the block (the
-station's neighbourhood, in memory); nothing of the split is redone here.  Where the
-input cannot give a part at all (no wind, no omega) or a window holds a gap or missing
-values, the part is ``None`` and ``missing`` says why.
+The same split as :func:`parcelcast.budget.eulerian_split`, computed for many windows at
+once: the fields are interpolated in time once at every window's integration nodes
+(:func:`parcelcast.budget.windows.simpson_nodes`, :func:`~parcelcast.budget.windows.interpolate_in_time`),
+the advection and omega S_p are evaluated once on the station's 4 x 4 neighbourhood and
+taken bilinearly at the station, and each window is a weighted sum of those values with
+the split's own weights.  Sums and the bilinear interpolation are linear, so the result
+equals the split window by window (tests compare them).  Where the input cannot give a
+part at all (no wind, no omega) or a window holds a gap or missing values, the part is
+``None`` and ``missing`` says why.
 """
 
 from __future__ import annotations
@@ -25,43 +30,100 @@ def block_rows(block, lat: float, lon: float, level_hpa: float, wind: str,
     and ``missing`` (part -> reason).  ``block`` holds the times the windows need."""
     block = block.load()
     times = block["time"].values
-    return [_row(block, lat, lon, level_hpa, wind, w, missing, gap_reason(times, w, step))
-            for w in windows]
+    parts = block_parts(block, lat, lon, level_hpa, wind, windows,
+                        with_advection="advective_K" not in missing)
+    rows = []
+    for k, window in enumerate(windows):
+        values = {p: (None if parts.get(p) is None else float(parts[p][k])) for p in PARTS}
+        rows.append(_row(window, values, missing, gap_reason(times, window, step)))
+    return rows
 
 
-def _row(block, lat, lon, level_hpa, wind, window: Window, missing: dict, gap) -> dict:
+def block_parts(block, lat, lon, level_hpa, wind, windows, with_advection=True) -> dict:
+    """part -> array (n_windows,) of member means (K); a part the input lacks is absent."""
+    from parcelcast.budget import interpolation_weights
+    from parcelcast.sampling import value_at
+    from parcelcast.selection import select_level
+
+    level = select_level(block, level_hpa)
+    times = block["time"].values
+    change = np.stack([interpolation_weights(times, w.end) - interpolation_weights(times, w.start)
+                       for w in windows])
+    parts = {"observed_change_K": _weighted_sums(value_at(level["temperature"], lat, lon), change)}
+    if not with_advection:
+        return parts
+    from parcelcast.budget.windows import interpolate_in_time
+
+    nodes, integral = _integration_nodes(times, windows)
+    at_nodes = [interpolate_in_time(x, nodes) for x in _advection_inputs(block, level, level_hpa, wind)]
+    from parcelcast.advection import advection
+
+    parts["advective_K"] = _weighted_sums(value_at(advection(*at_nodes), lat, lon), integral)
+    parts["residual_K"] = parts["observed_change_K"] - parts["advective_K"]
+    vertical = _vertical_term_at_nodes(block, level_hpa, nodes)
+    if vertical is not None:
+        parts["vertical_K"] = _weighted_sums(value_at(vertical, lat, lon), integral)
+        parts["residual_K"] = parts["residual_K"] - parts["vertical_K"]
+    return parts
+
+
+def _advection_inputs(block, level, level_hpa, wind):
+    """(temperature, u, v) on the level: the actual wind or the geostrophic one."""
+    if wind == "actual":
+        return level["temperature"], level["u"], level["v"]
+    from parcelcast.geostrophic import geostrophic_wind
+    from parcelcast.selection import select_level
+
+    return (level["temperature"], *geostrophic_wind(select_level(block[["geopotential"]], level_hpa)))
+
+
+def _integration_nodes(times, windows):
+    """All windows' Simpson nodes (ascending, unique) and the matrix (n_windows, n_nodes) of
+    each window's weights (s) on them."""
+    from parcelcast.budget.windows import simpson_nodes
+
+    per_window = [simpson_nodes(times, w.start, w.end) for w in windows]
+    nodes = np.unique(np.concatenate([n for n, _ in per_window]))
+    matrix = np.zeros((len(windows), nodes.size))
+    for k, (n, weights) in enumerate(per_window):
+        np.add.at(matrix[k], np.searchsorted(nodes, n), weights)
+    return nodes, matrix
+
+
+def _vertical_term_at_nodes(block, level_hpa, nodes):
+    """omega * S_p (K s-1) on the level at the nodes (omega and S_p each interpolated in
+    time, as the split does), or None without omega."""
+    if "omega" not in block.data_vars or block.sizes.get("level", 0) < 2:
+        return None
+    import xarray as xr
+
+    from parcelcast.budget.windows import interpolate_in_time
+    from parcelcast.selection import select_level
+    from parcelcast.thermo import static_stability
+
+    temperature = block["temperature"].transpose(..., "level")
+    stability = temperature.copy(data=static_stability(temperature.values, block["level"].values))
+    level = select_level(xr.Dataset({"omega": block["omega"], "stability": stability}), level_hpa)
+    return interpolate_in_time(level["omega"], nodes) * interpolate_in_time(level["stability"], nodes)
+
+
+def _weighted_sums(point, weights: np.ndarray) -> np.ndarray:
+    """sum_i w[k, i] x(t_i) for every window k over the times with a weight (a NaN where the
+    weight is 0 does not count; one where it counts makes the window NaN), member mean."""
+    values = np.atleast_2d(point.transpose(..., "time").values)  # (members, times)
+    products = np.where(weights != 0.0, weights[None] * values[:, None, :], 0.0)
+    return products.sum(axis=-1).mean(axis=0)
+
+
+def _row(window: Window, values: dict, missing: dict, gap) -> dict:
     reasons = dict(missing)
-    values = dict.fromkeys(PARTS)
     if gap:
-        reasons = dict.fromkeys(PARTS, gap)
+        values, reasons = dict.fromkeys(PARTS), dict.fromkeys(PARTS, gap)
     elif "advective_K" in missing:
-        values["observed_change_K"] = _observed_change(block, lat, lon, level_hpa, window)
         reasons["residual_K"] = "needs the advective part"
-    else:
-        from parcelcast.budget import eulerian_split
-
-        split = eulerian_split(block, lat, lon, level_hpa, window.start, window.end, wind)
-        values.update({k: split[k] for k in PARTS})
     for key, value in values.items():
         if value is not None and not math.isfinite(value):
             values[key] = None
             reasons[key] = NAN_REASON
-        elif value is None and key not in reasons:
-            reasons[key] = NAN_REASON
     return {"start": window.start, "end": window.end, **values,
             "missing": {k: reasons[k] for k in PARTS if values[k] is None}}
-
-
-def _observed_change(block, lat, lon, level_hpa, window: Window) -> float:
-    """T(end) - T(start) at the station (bilinear; linear in time between analyses), with
-    the split's own interpolation weights; for inputs that allow no advective part."""
-    from parcelcast.budget import interpolation_weights
-    from parcelcast.sampling import value_at
-    from parcelcast.selection import member_mean, select_level
-
-    series = member_mean(value_at(select_level(block[["temperature"]], level_hpa)["temperature"],
-                                  lat, lon)).values
-    times = block["time"].values
-    change = (interpolation_weights(times, window.end) - interpolation_weights(times, window.start))
-    used = np.flatnonzero(change)
-    return float(np.sum(change[used] * series[used]))
