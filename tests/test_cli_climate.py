@@ -81,3 +81,13 @@ def test_bad_input_is_refused_with_a_reason(record, capsys):
     with pytest.raises(SystemExit):
         main(["climate", str(record), "--at", "50,10", "--level", "high", "--window", "24"])
     assert "'surface'" in capsys.readouterr().err
+
+
+def test_a_pressure_level_asked_of_a_surface_file_names_what_is_there(capsys):
+    from datasets import data_file
+    from parcelcast.cli import main
+
+    path = data_file("era5-t2m-2019-03-hourly-uk.grb1")
+    assert main(["climate", str(path), "--at", "52,-1", "--level", "850", "--window", "24"]) == 2
+    err = capsys.readouterr().err
+    assert "no variable for 'temperature" in err and "Variables present: t2m" in err

@@ -57,6 +57,9 @@ def roles_needed(level, wind: str) -> list[str]:
 def level_view(ds, level, wind: str) -> LevelView:
     """The dataset and level for the split, and which parts cannot be had at all."""
     if level != SURFACE:
+        from parcelcast.io.analysis import require
+
+        require(ds, "temperature", purpose=f"the split at {level:g} hPa")
         missing = {}
         needed = ("u", "v") if wind == "actual" else ("geopotential",)
         absent = [r for r in needed if r not in ds.data_vars]
@@ -74,10 +77,9 @@ def _surface_view(ds, wind: str) -> LevelView:
     if wind != "actual":
         raise ParcelcastError("--level surface takes the actual 10-m wind; the geostrophic wind "
                               "needs geopotential on pressure levels")
-    if "near_surface_temperature" not in ds.data_vars:
-        from parcelcast.io.analysis import require
+    from parcelcast.io.analysis import require
 
-        require(ds, "near_surface_temperature", purpose="the split at the surface (2-m temperature)")
+    require(ds, "near_surface_temperature", purpose="the split at the surface (2-m temperature)")
     renamed = {"near_surface_temperature": "temperature"}
     missing = {"vertical_K": "not defined at the surface (no omega at 2 m)"}
     if all(r in ds.data_vars for r in NEAR_SURFACE_WIND):
