@@ -174,3 +174,31 @@ def test_split_maps_equal_the_in_memory_split_fields(wave_file, wave_in_memory, 
         assert written.sizes["time"] == 4 and written["advective"].dims == ("time", "lat", "lon")
         np.testing.assert_allclose(written["residual"].values[-1], ref["residual"].values,
                                    atol=1e-5, rtol=0)  # stored as float32
+
+
+def test_below_the_ground_is_missing_as_in_the_split(tmp_path, wave_in_memory):
+    """Surface pressure 800 hPa around 45 N 20 E: 850 hPa is below the ground there (the split
+    masks it, parcelcast.ground); 1000 hPa elsewhere."""
+    import xarray as xr
+
+    from parcelcast.budget import eulerian_split
+    from parcelcast.climate import climate_split
+    from parcelcast.io.analysis import open_analysis
+
+    raw = wave_record(days=2)
+    sp = xr.full_like(raw["t"].isel(plev=0, drop=True), 100_000.0)
+    sp.loc[{"lat": slice(40, 50), "lon": slice(15, 25)}] = 80_000.0
+    raw["sp"] = sp.assign_attrs(units="Pa", standard_name="surface_air_pressure")
+    path = tmp_path / "mountain.nc"
+    raw.to_netcdf(path)
+    whole = open_analysis(path)
+    for lat, lon, masked in ((45.0, 20.0, True), (47.0, 26.0, True), (45.0, 40.0, False)):
+        rows = list(climate_split(path, lat, lon, 850.0, 24))
+        for row in rows:
+            ref = eulerian_split(whole, lat, lon, 850.0, row["start"], row["end"])
+            if masked:  # a corner (45 N 25 E) lies in the mountain for the second station
+                assert np.isnan(ref["advective_K"]) and row["advective_K"] is None
+                assert row["missing"]["observed_change_K"].startswith("below the ground")
+            else:
+                assert row["advective_K"] == pytest.approx(ref["advective_K"], abs=1e-12)
+                assert row["missing"] == {}

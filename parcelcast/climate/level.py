@@ -18,6 +18,8 @@ from parcelcast.errors import ParcelcastError
 SURFACE = "surface"
 #: nominal pressure (hPa) under which the one-level near-surface view is filed; internal only
 NOMINAL_SURFACE_HPA = 1013.25
+#: surface fields that tell where a pressure level lies below the ground (parcelcast.ground)
+GROUND = ("surface_pressure", "orography")
 #: roles of the 10-m wind (named by the readers' near-surface level)
 NEAR_SURFACE_WIND = ("near_surface_u", "near_surface_v")
 
@@ -51,7 +53,8 @@ def roles_needed(level, wind: str) -> list[str]:
 
     if level == SURFACE:
         return [r for r in ("near_surface_temperature", *NEAR_SURFACE_WIND) if r in ROLES]
-    return ["temperature", "omega"] + (["u", "v"] if wind == "actual" else ["geopotential"])
+    return (["temperature", "omega", *GROUND]
+            + (["u", "v"] if wind == "actual" else ["geopotential"]))
 
 
 def level_view(ds, level, wind: str) -> LevelView:
@@ -69,7 +72,7 @@ def level_view(ds, level, wind: str) -> LevelView:
         if "omega" not in ds.data_vars:
             missing["vertical_K"] = "no omega in the input"
         return LevelView(ds[[n for n in ds.data_vars if n in
-                             ("temperature", "omega", *needed)]], float(level), missing)
+                             ("temperature", "omega", *needed, *GROUND)]], float(level), missing)
     return _surface_view(ds, wind)
 
 

@@ -32,11 +32,39 @@ def block_rows(block, lat: float, lon: float, level_hpa: float, wind: str,
     times = block["time"].values
     parts = block_parts(block, lat, lon, level_hpa, wind, windows,
                         with_advection="advective_K" not in missing)
+    below = _below_ground(block, lat, lon, level_hpa, windows)
     rows = []
     for k, window in enumerate(windows):
         values = {p: (None if parts.get(p) is None else float(parts[p][k])) for p in PARTS}
-        rows.append(_row(window, values, missing, gap_reason(times, window, step)))
+        reason = gap_reason(times, window, step) or (below[k] and _ground_reason(level_hpa))
+        rows.append(_row(window, values, missing, reason))
     return rows
+
+
+def _below_ground(block, lat, lon, level_hpa, windows) -> list[bool]:
+    """For each window: does the level lie below the ground at one of the station's 2 x 2
+    grid points at any analysis time the window uses (then the split masks it)?"""
+    from parcelcast.climate.windows import bounding_slice
+    from parcelcast.ground import below_ground
+    from parcelcast.sampling import corner_box
+    from parcelcast.selection import select_level
+
+    mask, _ = below_ground(select_level(block, level_hpa))
+    if mask is None:
+        return [False] * len(windows)
+    corners = corner_box(mask, lat, lon)
+    corners = corners.any([d for d in corners.dims if d not in ("member", "time")])
+    if "time" not in corners.dims:
+        return [bool(corners.any())] * len(windows)
+    at_times = np.atleast_2d(corners.transpose(..., "time").values).any(axis=0)
+    times = block["time"].values
+    return [bool(at_times[bounding_slice(times, w, w)].any()) for w in windows]
+
+
+def _ground_reason(level_hpa: float) -> str:
+    from parcelcast.ground import BELOW_GROUND
+
+    return f"{BELOW_GROUND}: the {level_hpa:g} hPa level lies below the surface at or next to the station"
 
 
 def block_parts(block, lat, lon, level_hpa, wind, windows, with_advection=True) -> dict:
@@ -115,10 +143,12 @@ def _weighted_sums(point, weights: np.ndarray) -> np.ndarray:
     return products.sum(axis=-1).mean(axis=0)
 
 
-def _row(window: Window, values: dict, missing: dict, gap) -> dict:
+def _row(window: Window, values: dict, missing: dict, void: str | None) -> dict:
+    """The row of one window; ``void`` is a reason that empties every part (a gap, the
+    level below the ground)."""
     reasons = dict(missing)
-    if gap:
-        values, reasons = dict.fromkeys(PARTS), dict.fromkeys(PARTS, gap)
+    if void:
+        values, reasons = dict.fromkeys(PARTS), dict.fromkeys(PARTS, void)
     elif "advective_K" in missing:
         reasons["residual_K"] = "needs the advective part"
     for key, value in values.items():
