@@ -25,7 +25,9 @@ PART_NAMES = ("observed_change", "advective", "vertical", "residual")
 def window_fields(block, level_hpa: float, start, end, wind: str):
     """The split maps of one window, computed in memory (one task)."""
     from parcelcast.budget import split_fields
+    from parcelcast.climate.run import small_netcdf_chunk_cache
 
+    small_netcdf_chunk_cache()  # for files this worker opens from now on
     return split_fields(block.load(), level_hpa, start, end, wind)
 
 

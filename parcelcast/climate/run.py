@@ -24,11 +24,27 @@ MAPS_TIME_CHUNK = 1
 TIMES_PER_TASK = 64
 
 
+#: netCDF-4 chunk cache (bytes per variable and open file) during a climate run.  The record
+#: is read once, in time order, so a cache gains nothing; the library default (64 MB per
+#: variable, for every file xarray keeps open) would make memory grow with the files read.
+NETCDF_CHUNK_CACHE_BYTES = 4 * 2**20
+
+
+def small_netcdf_chunk_cache() -> None:
+    """Set :data:`NETCDF_CHUNK_CACHE_BYTES` for files opened from now on in this process
+    (called where the record is opened and in every task, so workers do it too)."""
+    import netCDF4
+
+    netCDF4.set_chunk_cache(NETCDF_CHUNK_CACHE_BYTES, 101, 0.75)
+
+
 def open_record(paths, level, wind: str = "actual", overrides=None, time_chunk=STATION_TIME_CHUNK):
     """Open analysis files lazily (dask-backed, ``time_chunk`` times per chunk) with the
     roles the split at ``level`` needs."""
     from parcelcast.climate.level import roles_needed
     from parcelcast.io.analysis import open_analysis
+
+    small_netcdf_chunk_cache()
 
     ds = open_analysis(paths, overrides, roles=roles_needed(level, wind),
                        chunks={"time": int(time_chunk)})

@@ -27,7 +27,11 @@ NAN_REASON = "missing values (NaN) in the analysis at or next to the station in 
 def block_rows(block, lat: float, lon: float, level_hpa: float, wind: str,
                windows: list[Window], missing: dict, step) -> list[dict]:
     """One row per window: ``start``, ``end`` (datetime64), the four parts (float or None)
-    and ``missing`` (part -> reason).  ``block`` holds the times the windows need."""
+    and ``missing`` (part -> reason).  ``block`` holds the times the windows need (dask
+    computes it before this runs; files a worker opens itself get the small chunk cache)."""
+    from parcelcast.climate.run import small_netcdf_chunk_cache
+
+    small_netcdf_chunk_cache()
     block = block.load()
     times = block["time"].values
     parts = block_parts(block, lat, lon, level_hpa, wind, windows,
