@@ -21,7 +21,7 @@ def record(tmp_path_factory):
 
 def _run(*args):
     return subprocess.run([*cli_command(), "climate", *map(str, args)], capture_output=True,
-                          text=True, timeout=120)
+                          text=True, timeout=300)
 
 
 def test_json_csv_netcdf_and_plot_agree(record, tmp_path):
@@ -61,7 +61,7 @@ def test_surface_level_reported_as_such_and_no_matplotlib_without_plot(record):
 
     done = subprocess.run([sys.executable, "-c", code, "climate", str(record), "--at", "50,10",
                            "--level", "surface", "--window", "24", "--json"],
-                          capture_output=True, text=True, timeout=120)
+                          capture_output=True, text=True, timeout=300)
     # the synthetic record has no 2-m temperature: a clear error naming what is missing
     assert done.returncode == 2
     assert "near_surface_temperature" in done.stderr and "False" in done.stderr
