@@ -20,6 +20,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "track": ("parcelcast.cli.track", "back or forward air-parcel trajectories"),
     "profile": ("parcelcast.cli.profile", "analyse a vertical profile (CSV or analysis column)"),
     "split": ("parcelcast.cli.split", "split a local temperature change into advective and other parts"),
+    "climate": ("parcelcast.cli.climate", "the split at a station for every window of a long record, by month"),
     "review": ("parcelcast.cli.review", "build a case review from a case TOML file"),
     "demo": ("parcelcast.cli.demo", "build the invented demo scenario and run the main job on it"),
     "prepare": ("parcelcast.cli.prepare", "compile the numba kernels once into the cache folder"),
