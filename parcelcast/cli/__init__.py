@@ -41,6 +41,9 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
         epilog=DISCLAIMER,
     )
     _add_global_options(parser, False)
+    from parcelcast import __version__
+
+    parser.add_argument("--version", action="version", version=f"parcelcast {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module, help_text) in COMMANDS.items():
         p = sub.add_parser(name, help=help_text, description=help_text, epilog=DISCLAIMER)
@@ -94,7 +97,9 @@ def configure_logging(quiet: bool = False, verbose: bool = False) -> None:
 
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the console script; returns the exit status."""
-    argv = list(sys.argv[1:] if argv is None else argv)
+    from parcelcast.cli._common import attach_negative_values
+
+    argv = attach_negative_values(list(sys.argv[1:] if argv is None else argv))
     command = next((a for a in argv if not a.startswith("-")), None)
     if command not in COMMANDS:
         command = None

@@ -5,21 +5,95 @@ from __future__ import annotations
 import argparse
 import json
 import math
+import re
 import sys
 
 
-def lat_lon(text: str) -> tuple[float, float]:
-    """Parse ``LAT,LON`` in degrees (north and east positive)."""
+_HEMISPHERE = {"N": ("latitude", 1.0), "S": ("latitude", -1.0), "E": ("longitude", 1.0),
+               "W": ("longitude", -1.0)}
+_POSITION_HELP = "LAT,LON in degrees such as 52.1,-1.5 or 52.1N,1.5W"
+
+
+def _degrees(text: str, axis: str, whole: str) -> float:
+    """One coordinate of a position: a signed number of degrees or a number with N/S (E/W)."""
+    part = text.strip().rstrip("\u00b0")
+    sign = 1.0
+    if part[-1:].upper() in _HEMISPHERE and not _is_number(part):  # 'nan' ends in n, too
+        letter_axis, sign = _HEMISPHERE[part[-1].upper()]
+        if letter_axis != axis:
+            raise argparse.ArgumentTypeError(
+                f"{part[-1]!r} marks a {letter_axis} but stands in the {axis} place "
+                f"of {whole!r}; expected {_POSITION_HELP}")
+        part = part[:-1].rstrip("\u00b0 ")
+        if part.startswith(("-", "+")):
+            raise argparse.ArgumentTypeError(
+                f"{text.strip()!r} in {whole!r} has both a sign and a hemisphere letter; "
+                f"expected {_POSITION_HELP}")
     try:
-        lat_text, lon_text = text.split(",")
-        lat, lon = float(lat_text), float(lon_text)
+        value = float(part)
     except ValueError:
+        raise argparse.ArgumentTypeError(f"expected {_POSITION_HELP}; got {whole!r}") from None
+    if not math.isfinite(value):
         raise argparse.ArgumentTypeError(
-            f"expected LAT,LON in degrees such as 52.1,-1.5; got {text!r}"
-        ) from None
+            f"the {axis} in {whole!r} is not a finite number; expected {_POSITION_HELP}")
+    return sign * value
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+def lat_lon(text: str) -> tuple[float, float]:
+    """Parse a position ``LAT,LON`` in degrees (north and east positive).
+
+    Accepts signed numbers (``-33.9,151.2``) or hemisphere letters (``33.9S,151.2E``);
+    refuses NaN, infinities, latitudes outside -90..90 and longitudes outside -360..360.
+    """
+    pieces = text.split(",")
+    if len(pieces) != 2 or not all(p.strip() for p in pieces):
+        raise argparse.ArgumentTypeError(f"expected {_POSITION_HELP}; got {text!r}")
+    return latitude(pieces[0], text), longitude(pieces[1], text)
+
+
+def latitude(text: str, whole: str | None = None) -> float:
+    """Parse one latitude (``-33.9`` or ``33.9S``) in -90..90, e.g. for ``--lat``."""
+    lat = _degrees(text, "latitude", whole or text)
     if not -90.0 <= lat <= 90.0:
-        raise argparse.ArgumentTypeError(f"latitude {lat} is outside -90..90")
-    return lat, lon
+        raise argparse.ArgumentTypeError(f"latitude {lat} is outside -90..90 in {whole or text!r}")
+    return lat
+
+
+def longitude(text: str, whole: str | None = None) -> float:
+    """Parse one longitude (``-1.5`` or ``1.5W``) in -360..360, e.g. for ``--lon``."""
+    lon = _degrees(text, "longitude", whole or text)
+    if not -360.0 <= lon <= 360.0:
+        raise argparse.ArgumentTypeError(f"longitude {lon} is outside -360..360 in {whole or text!r}")
+    return lon
+
+
+#: an option value that starts with a minus but is data, not an option: ``-33.9,151.2``
+_NEGATIVE_VALUE = re.compile(r"^-(\d|\.\d)[^=\s]*$")
+
+
+def attach_negative_values(argv: list[str]) -> list[str]:
+    """Join ``--opt -33.9,151.2`` into ``--opt=-33.9,151.2`` so argparse reads it as a value.
+
+    argparse takes any word starting with ``-`` that is not a plain negative number for an
+    option; a southern or western position typed as its own word would be refused.  No option
+    of parcelcast starts with a minus followed by a digit, so such a word is always a value.
+    """
+    out: list[str] = []
+    for word in argv:
+        if (out and _NEGATIVE_VALUE.match(word) and out[-1].startswith("--")
+                and "=" not in out[-1] and out[-1] != "--"):
+            out[-1] = f"{out[-1]}={word}"
+        else:
+            out.append(word)
+    return out
 
 
 def pressure_level_or_surface(text: str):

@@ -31,8 +31,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="BUFR: the ascent of this station (5-digit index, block x 1000 + station)")
     parser.add_argument("--list", action="store_true",
                         help="BUFR: list the ascents (station, position, time, levels) and stop")
-    parser.add_argument("--lat", type=float, help="latitude of a CSV profile (degrees north)")
-    parser.add_argument("--lon", type=float, help="longitude of a CSV profile (degrees east)")
+    parser.add_argument("--lat", type=_common.latitude, help="latitude of a CSV profile (degrees north)")
+    parser.add_argument("--lon", type=_common.longitude, help="longitude of a CSV profile (degrees east)")
     parser.add_argument("--time", type=_common.utc_time, metavar="ISO",
                         help="valid time (UTC unless a zone is given): of the analysis column, "
                         "default the latest; or of a CSV profile that does not state one")
