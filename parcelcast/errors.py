@@ -3,7 +3,9 @@
 Every error a user can meet derives from :class:`ParcelcastError` and carries
 the facts needed to act on it (which file, which variable, what was expected,
 what was found) as attributes as well as in its message.  The command line
-turns any ``ParcelcastError`` into a one-paragraph message and exit status 2.
+turns any ``ParcelcastError`` into a one-paragraph message and the exit status
+of its class (:data:`EXIT_STATUS`, also listed in the README); a traceback is
+printed only with ``--debug``.
 """
 
 from __future__ import annotations
@@ -12,8 +14,40 @@ import warnings
 from collections.abc import Iterable
 
 
+#: exit status of the command line for each class of outcome (README "Exit statuses")
+EXIT_STATUS = {
+    "ok": 0,
+    "internal": 1,         # a fault in parcelcast itself (please report it; --debug shows where)
+    "usage": 2,            # options missing, malformed, contradictory or out of range
+    "unreadable_input": 3,  # a file missing, damaged, of unknown format, with wrong units or values
+    "missing_quantity": 4,  # a quantity the calculation needs is not in the input
+    "nothing_to_compute": 5,  # the level, time, window or point asked for is not in the data
+    "cannot_write": 6,     # an output cannot be written (folder missing or read-only, would overwrite input)
+}
+
+
 class ParcelcastError(Exception):
-    """Base class for errors a user can act on."""
+    """Base class for errors a user can act on (exit status: unreadable input)."""
+
+    exit_status = EXIT_STATUS["unreadable_input"]
+
+
+class UsageError(ParcelcastError):
+    """Options that cannot work together or lie outside their range (found after parsing)."""
+
+    exit_status = EXIT_STATUS["usage"]
+
+
+class OutputError(ParcelcastError):
+    """An output cannot be written: its folder is missing or read-only, it is a folder, or it
+    would replace one of the inputs."""
+
+    exit_status = EXIT_STATUS["cannot_write"]
+
+    def __init__(self, path, reason: str):
+        self.path = str(path)
+        self.reason = reason
+        super().__init__(f"cannot write {self.path}: {reason}")
 
 
 class InputFileError(ParcelcastError):
@@ -27,6 +61,8 @@ class InputFileError(ParcelcastError):
 
 class VariableNotFoundError(ParcelcastError):
     """A quantity the calculation needs is not in the input."""
+
+    exit_status = EXIT_STATUS["missing_quantity"]
 
     def __init__(self, role: str, source: str, found: Iterable[str], hint: str = ""):
         self.role = role
@@ -72,6 +108,8 @@ class ImplausibleValuesError(ParcelcastError):
 class SelectionError(ParcelcastError):
     """A requested level, time, member or point is not available."""
 
+    exit_status = EXIT_STATUS["nothing_to_compute"]
+
     def __init__(self, what: str, requested, available: str, source: str = ""):
         self.what = what
         self.requested = requested
@@ -81,7 +119,7 @@ class SelectionError(ParcelcastError):
 
 
 class IncompleteInputError(ParcelcastError):
-    """Input opened only in part (e.g. a damaged GRIB file) and lacks what is needed."""
+    """Input opened only in part (a damaged GRIB file, a NetCDF file cut short): unreadable input."""
 
 
 class GridError(ParcelcastError):

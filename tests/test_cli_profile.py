@@ -56,10 +56,10 @@ def test_csv_text_and_plot(tmp_path, capsys):
     assert out.read_bytes()[:4] == b"\x89PNG"
 
 
-def test_bad_csv_exit_2_with_row(tmp_path, capsys):
+def test_bad_csv_exit_3_with_row(tmp_path, capsys):
     path = tmp_path / "bad.csv"
     path.write_text(CSV.replace("850,1500", "925,1500"))
-    assert main(["profile", str(path), "--json"]) == 2
+    assert main(["profile", str(path), "--json"]) == 3  # unreadable input
     err = capsys.readouterr().err
     assert "row 4" in err and "duplicated level" in err
 

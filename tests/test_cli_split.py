@@ -95,20 +95,20 @@ def test_times_without_zone_are_utc_and_offsets_converted(files, capsys):
 
 @pytest.mark.parametrize("start,end", [("2021-02-28T12:00", "2021-03-01T12:00"),
                                        ("2021-03-02T12:00", "2021-03-03T06:00")])
-def test_window_outside_the_analysis_exits_2_listing_times(files, capsys, start, end):
+def test_window_outside_the_analysis_exits_5_listing_times(files, capsys, start, end):
     rc, captured = run(capsys, files["plain"], "--at", "50,16", "--level", "850", "--start", start,
                        "--end", end, "--json")
-    assert rc == 2
+    assert rc == 5  # nothing to compute (parcelcast.errors.EXIT_STATUS)
     assert captured.out == ""
     # the analysis runs 2021-03-01 00 UTC to 2021-03-03 00 UTC (3-hourly)
     assert "2021-03-01T00:00" in captured.err and "2021-03-03T00:00" in captured.err
     assert "not available" in captured.err
 
 
-def test_reversed_window_exits_2(files, capsys):
+def test_reversed_window_exits_5(files, capsys):
     rc, captured = run(capsys, files["plain"], "--at", "50,16", "--level", "850",
                        "--start", "2021-03-02T00:00", "--end", "2021-03-01T00:00")
-    assert rc == 2 and "after its start" in captured.err
+    assert rc == 5 and "after its start" in captured.err
 
 
 def test_obs_gives_the_observed_change(files, capsys, tmp_path):

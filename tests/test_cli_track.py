@@ -110,14 +110,14 @@ def test_bad_suffix_and_errors(nc_file, tmp_path, capsys):
     out = tmp_path / "paths.xyz"
     code, cap = _run(["track", str(nc_file), "--from", "40,10", "--level", "850", "--back", "6",
                       "--out", str(out)], capsys)
-    assert code == 2 and ".geojson" in cap.err and not out.exists()
+    assert code == 2 and ".geojson" in cap.err and not out.exists()  # usage
     assert list(tmp_path.iterdir()) == []  # nothing half-written
     code, cap = _run(["track", str(nc_file), "--from", "40,10", "--level", "850", "--back", "6",
                       "--start", "1999-01-01"], capsys)
-    assert code == 2 and "time" in cap.err
+    assert code == 5 and "time" in cap.err  # nothing to compute (errors.EXIT_STATUS)
     code, cap = _run(["track", str(nc_file), "--from", "40,10", "--level", "850", "--back", "6",
                       "--mode", "3d"], capsys)
-    assert code == 2 and "omega" in cap.err
+    assert code == 4 and "omega" in cap.err  # missing quantity
 
 
 def test_help_is_light():

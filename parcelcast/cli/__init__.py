@@ -44,6 +44,8 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     from parcelcast import __version__
 
     parser.add_argument("--version", action="version", version=f"parcelcast {__version__}")
+    parser.add_argument("--debug", action="store_true",
+                        help="on an error, print the Python traceback as well (anywhere on the line)")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     for name, (module, help_text) in COMMANDS.items():
         p = sub.add_parser(name, help=help_text, description=help_text, epilog=DISCLAIMER)
@@ -103,25 +105,22 @@ def main(argv: list[str] | None = None) -> int:
     command = next((a for a in argv if not a.startswith("-")), None)
     if command not in COMMANDS:
         command = None
+    debug = "--debug" in argv  # accepted anywhere on the line
+    argv = [a for a in argv if a != "--debug"]
     args = build_parser(command).parse_args(argv)
     if args.command is None:
         build_parser().print_help()
-        return 1
+        return 2  # usage
     configure_logging(args.quiet, args.verbose)
     from parcelcast.cache import configure_numba_cache
-    from parcelcast.errors import ParcelcastError
-
+    from parcelcast.cli._common import run_command
     from parcelcast.io.lazy_dask import import_pint_without_dask
 
     configure_numba_cache()  # before any kernel module imports numba
     import_pint_without_dask()  # dask only for commands that chunk
 
     module = importlib.import_module(COMMANDS[args.command][0])
-    try:
-        return int(module.run(args) or 0)
-    except ParcelcastError as exc:
-        print(f"parcelcast {args.command}: error: {exc}", file=sys.stderr)
-        return 2
+    return run_command(module.run, args, debug)
 
 
 if __name__ == "__main__":  # pragma: no cover

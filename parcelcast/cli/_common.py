@@ -3,10 +3,13 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import math
 import re
+import signal
 import sys
+import traceback
 
 
 _HEMISPHERE = {"N": ("latitude", 1.0), "S": ("latitude", -1.0), "E": ("longitude", 1.0),
@@ -177,3 +180,90 @@ def jsonable(obj, digits: int = 4):
 def print_json(obj) -> None:
     json.dump(obj, sys.stdout, indent=2, allow_nan=False)
     sys.stdout.write("\n")
+
+
+#: commands whose ``--out`` is a folder of several outputs (every other --out/--map/--plot is a file)
+FOLDER_OUTPUT_COMMANDS = ("review", "demo")
+
+#: argument names that hold files a command reads (protected from being overwritten)
+INPUT_ARGUMENTS = ("files", "case", "obs")
+
+
+def _input_paths(args) -> list[str]:
+    paths: list[str] = []
+    for name in INPUT_ARGUMENTS:
+        value = getattr(args, name, None)
+        if value:
+            paths += [value] if isinstance(value, str) else list(value)
+    return paths
+
+
+def check_outputs(args) -> None:
+    """Refuse, before any computing, outputs that cannot be written or would replace an input."""
+    from parcelcast.io.atomic import check_file_target, check_folder_target
+
+    for name in ("out", "map", "plot"):
+        value = getattr(args, name, None)
+        if not value:
+            continue
+        if name == "out" and args.command in FOLDER_OUTPUT_COMMANDS:
+            check_folder_target(value)
+        else:
+            check_file_target(value)
+
+
+@contextlib.contextmanager
+def _interrupt_on_terminate():
+    """Turn SIGTERM into KeyboardInterrupt so temporary outputs are cleaned up on the way out."""
+    def handler(signum, frame):
+        raise KeyboardInterrupt
+
+    try:
+        previous = signal.signal(signal.SIGTERM, handler)
+    except ValueError:  # not the main thread: leave signals alone
+        yield
+        return
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
+
+
+def run_command(run, args, debug: bool = False) -> int:
+    """Run a command's ``run(args)`` and turn every failure into one message and an exit status.
+
+    A :class:`~parcelcast.errors.ParcelcastError` exits with its class's status
+    (``parcelcast.errors.EXIT_STATUS``); a file-system error not caught nearer its cause
+    names the file; anything else is a fault in parcelcast (status 1).  The traceback is
+    printed only with ``--debug``.
+    """
+    from parcelcast.errors import EXIT_STATUS, ParcelcastError
+    from parcelcast.io.atomic import guard_inputs
+
+    name = f"parcelcast {args.command}"
+    try:
+        with _interrupt_on_terminate(), guard_inputs(_input_paths(args)):
+            check_outputs(args)
+            return int(run(args) or 0)
+    except ParcelcastError as exc:
+        message, status = f"error: {exc}", exc.exit_status
+    except KeyboardInterrupt:
+        message, status = "interrupted; no output was left written in part", 130
+    except BrokenPipeError:  # output piped into a reader that stopped (e.g. head)
+        return EXIT_STATUS["ok"]
+    except OSError as exc:
+        where = f"{exc.filename}: " if exc.filename else ""
+        message = f"error: {where}{exc.strerror or exc}"
+        status = EXIT_STATUS["unreadable_input"]
+    except MemoryError:
+        message = ("error: not enough memory for this request; ask for less (fewer members, "
+                   "a shorter span, wider output spacing, a smaller area)")
+        status = EXIT_STATUS["usage"]
+    except Exception as exc:  # noqa: BLE001 - the last line of defence of the command line
+        message = (f"internal error ({type(exc).__name__}: {exc}). This is a fault in parcelcast; "
+                   "rerun with --debug for the traceback and report it")
+        status = EXIT_STATUS["internal"]
+    if debug:
+        traceback.print_exc()
+    print(f"{name}: {message}", file=sys.stderr)
+    return status

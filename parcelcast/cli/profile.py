@@ -165,7 +165,7 @@ def _bufr_profile(args):
 def run(args) -> int:
     from pathlib import Path
 
-    from parcelcast.errors import ParcelcastError
+    from parcelcast.errors import UsageError
     from parcelcast.io.bufr import is_bufr
     from parcelcast.profiles import analyse, column_from_analysis, gridded_layer_advection, read_profile_csv
 
@@ -173,7 +173,7 @@ def run(args) -> int:
     selection = None
     bufr = len(args.files) == 1 and is_bufr(args.files[0])
     if (args.station or args.list) and not bufr:
-        raise ParcelcastError("--station and --list need one BUFR file of radiosonde ascents "
+        raise UsageError("--station and --list need one BUFR file of radiosonde ascents "
                             f"(got {', '.join(args.files)})")
     if bufr:
         chosen = _bufr_profile(args)
@@ -183,7 +183,7 @@ def run(args) -> int:
         result = analyse(profile, advective_change=args.advected_change)
     elif args.at is None:
         if len(args.files) != 1 or Path(args.files[0]).suffix.lower() not in (".csv", ".txt"):
-            raise ParcelcastError(
+            raise UsageError(
                 "give one profile CSV file, one BUFR file, or analysis files with --at LAT,LON "
                 f"(got {', '.join(args.files)})")
         profile = read_profile_csv(args.files[0], args.lat, args.lon, args.time)

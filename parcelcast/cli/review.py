@@ -18,36 +18,37 @@ def run(args) -> int:
 
     from parcelcast.cli import DISCLAIMER
     from parcelcast.cli._common import jsonable
-    from parcelcast.io.atomic import atomic_path, write_text
+    from parcelcast.io.atomic import add_inputs, atomic_folder, atomic_path, write_text
     from parcelcast.render.review_figures import split_maps_figure, timeline_figure, trajectories_figure
     from parcelcast.report import html_page, markdown
     from parcelcast.review import build_review, read_case
 
     case = read_case(args.case)
+    add_inputs(case.analyses)
     review = build_review(case)
-    out = Path(args.out or f"review-{case.source.parent.name}")
-    out.mkdir(parents=True, exist_ok=True)
-    timeline_figure(review, out / "timeline.png")
-    split_maps_figure(review, out / "split-maps.png")
-    trajectories_figure(review, out / "trajectories.png")
-    buffer = io.StringIO()
-    writer = csv.writer(buffer)
-    writer.writerow(["time_utc", "observed_change_K", "advective_K", "vertical_K", "residual_K"])
-    for row in review["timeline"]:
-        writer.writerow([str(row["time"])[:19] + "Z"] + [
-            "" if row[k] is None else f"{row[k]:.4f}"
-            for k in ("observed_change_K", "advective_K", "vertical_K", "residual_K")])
-    write_text(out / "timeline.csv", buffer.getvalue())
-    with atomic_path(out / "split-fields.nc") as tmp:
-        review["fields"].to_netcdf(tmp, engine="netcdf4")
-    summary = dict(review["eulerian"])
-    summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
-    summary["advective_difference_K"] = review["advective_difference_K"]
-    summary["consistency"] = review["consistency"]
-    summary["disclaimer"] = DISCLAIMER
-    write_text(out / "review.json", json.dumps(jsonable(summary), indent=2, allow_nan=False) + "\n")
-    write_text(out / "report.md", markdown(review))
-    write_text(out / "report.html", html_page(review))
-    print(f"case review written to {out}/ (report.md, report.html, figures, timeline.csv)")
+    target = Path(args.out or f"review-{case.source.parent.name}")
+    with atomic_folder(target) as out:  # the folder appears whole, or stays as it was
+        timeline_figure(review, out / "timeline.png")
+        split_maps_figure(review, out / "split-maps.png")
+        trajectories_figure(review, out / "trajectories.png")
+        buffer = io.StringIO()
+        writer = csv.writer(buffer)
+        writer.writerow(["time_utc", "observed_change_K", "advective_K", "vertical_K", "residual_K"])
+        for row in review["timeline"]:
+            writer.writerow([str(row["time"])[:19] + "Z"] + [
+                "" if row[k] is None else f"{row[k]:.4f}"
+                for k in ("observed_change_K", "advective_K", "vertical_K", "residual_K")])
+        write_text(out / "timeline.csv", buffer.getvalue())
+        with atomic_path(out / "split-fields.nc") as tmp:
+            review["fields"].to_netcdf(tmp, engine="netcdf4")
+        summary = dict(review["eulerian"])
+        summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
+        summary["advective_difference_K"] = review["advective_difference_K"]
+        summary["consistency"] = review["consistency"]
+        summary["disclaimer"] = DISCLAIMER
+        write_text(out / "review.json", json.dumps(jsonable(summary), indent=2, allow_nan=False) + "\n")
+        write_text(out / "report.md", markdown(review))
+        write_text(out / "report.html", html_page(review))
+    print(f"case review written to {target}/ (report.md, report.html, figures, timeline.csv)")
     print(DISCLAIMER)
     return 0

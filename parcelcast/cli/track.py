@@ -178,10 +178,10 @@ def _series(ds, args, hours):
     """The --series start times, the --start one first (None for a single time)."""
     import numpy as np
 
-    from parcelcast.errors import ParcelcastError
+    from parcelcast.errors import UsageError
 
     if args.series < 1:
-        raise ParcelcastError(f"--series must be 1 or more, got {args.series}")
+        raise UsageError(f"--series must be 1 or more, got {args.series}")
     if args.series == 1:
         return None
     times = ds["time"].values

@@ -2,15 +2,19 @@
 
 from __future__ import annotations
 
-from parcelcast.errors import GridError, ParcelcastError
+from parcelcast.errors import EXIT_STATUS, GridError, ParcelcastError
 
 
 class TrajectoryError(ParcelcastError):
     """A trajectory request cannot be carried out as asked."""
 
+    exit_status = EXIT_STATUS["nothing_to_compute"]
+
 
 class TrajectoryGridError(GridError, TrajectoryError):
     """The analysis grid is unsuitable for trajectories (order, span, levels)."""
+
+    exit_status = EXIT_STATUS["unreadable_input"]
 
 
 class StartPointError(TrajectoryError):
@@ -25,6 +29,8 @@ class StartPointError(TrajectoryError):
 
 class MissingInputError(TrajectoryError):
     """A field the chosen mode needs is absent (e.g. omega for 3-D trajectories)."""
+
+    exit_status = EXIT_STATUS["missing_quantity"]
 
     def __init__(self, mode: str, needed: str, found):
         self.mode = mode

@@ -21,7 +21,7 @@ from pathlib import Path
 import numpy as np
 
 from parcelcast.io.atomic import atomic_path
-from parcelcast.trajectories.errors import TrajectoryError
+from parcelcast.errors import UsageError
 
 FORMATS = {".nc": "netcdf", ".csv": "csv", ".geojson": "geojson", ".json": "geojson"}
 
@@ -42,12 +42,12 @@ def _num(x, digits=4):
 def write_trajectories(ds, path) -> Path:
     """Write trajectories to ``path``; the format follows the suffix (.nc, .csv, .geojson).
 
-    Raises :class:`TrajectoryError` for an unknown suffix (listing the valid ones).
+    Raises :class:`parcelcast.errors.UsageError` for an unknown suffix (listing the valid ones).
     """
     path = Path(path)
     kind = FORMATS.get(path.suffix.lower())
     if kind is None:
-        raise TrajectoryError(
+        raise UsageError(
             f"cannot tell the output format from {path.name!r}; use one of: {', '.join(FORMATS)}")
     with atomic_path(path) as tmp:
         if kind == "netcdf":
