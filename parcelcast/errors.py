@@ -68,9 +68,15 @@ class VariableNotFoundError(ParcelcastError):
         self.role = role
         self.source = source
         self.found = sorted(found)
+        roles = [r.strip() for r in role.split(",")]
+        if len(roles) == 1:
+            wanted, how = f"'{role}'", f"Name it with --var {role}=NAME"
+        else:  # none of several roles: say which, and how to name any one of them
+            wanted = "any of " + ", ".join(f"'{r}'" for r in roles)
+            how = f"Name them with --var ROLE=NAME (for example --var {roles[0]}=NAME)"
         msg = (
-            f"{source}: no variable for '{role}' was found. Variables present: "
-            f"{', '.join(self.found) or '(none)'}. Name it with --var {role}=NAME"
+            f"{source}: no variable for {wanted} was found. Variables present: "
+            f"{', '.join(self.found) or '(none)'}. {how}"
         )
         if hint:
             msg += f" ({hint})"
@@ -103,6 +109,19 @@ class ImplausibleValuesError(ParcelcastError):
         self.quantity = quantity
         self.source = source
         super().__init__(f"{source}: {quantity} values are implausible: {detail}")
+
+
+class MissingCoordinateError(ParcelcastError):
+    """A coordinate the calculation needs (e.g. valid time) is not in the input."""
+
+    exit_status = EXIT_STATUS["missing_quantity"]
+
+    def __init__(self, coordinate: str, source: str, dims, why: str):
+        self.coordinate = coordinate
+        self.source = source
+        self.dims = list(dims)
+        super().__init__(f"{source}: has no {coordinate} coordinate (its dimensions: "
+                         f"{', '.join(self.dims) or '(none)'}); {why}.")
 
 
 class SelectionError(ParcelcastError):

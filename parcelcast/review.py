@@ -61,10 +61,16 @@ def read_case(path) -> Case:
         raise InputFileError(path, "no such case file")
     try:
         data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except UnicodeDecodeError:
+        raise InputFileError(path, "not UTF-8 text (TOML files are UTF-8)") from None
     except tomllib.TOMLDecodeError as exc:
         raise InputFileError(path, f"not valid TOML: {exc}") from None
     try:
-        case, station, window = data["case"], data["station"], data["window"]
+        case, station, window = (_table(data, key, path) for key in ("case", "station", "window"))
+        if not isinstance(case["analyses"], list) or not case["analyses"] or not all(
+                isinstance(item, str) for item in case["analyses"]):
+            raise InputFileError(path, "[case] analyses must be a non-empty list of file names "
+                                 'or patterns, such as analyses = ["a.grb"]')
         data_dir = os.environ.get("PARCELCAST_DATA") or str(
             (path.parent / case.get("data_dir", ".")).resolve())
         analyses = []
@@ -77,14 +83,37 @@ def read_case(path) -> Case:
         wind = str(case.get("wind", "actual"))
         check_wind(wind)
         return Case(title=str(case.get("title", path.stem)), analyses=analyses,
-                    station_name=str(station.get("name", "station")), lat=float(station["lat"]),
-                    lon=float(station["lon"]), start=start, end=end,
-                    level_hpa=float(window.get("level_hPa", 850)),
-                    wind=wind, members=int(case.get("members", 5)),
+                    station_name=str(station.get("name", "station")),
+                    lat=_number(station, "lat", path, "station", -90.0, 90.0),
+                    lon=_number(station, "lon", path, "station", -360.0, 360.0), start=start,
+                    end=end, level_hpa=_number(window, "level_hPa", path, "window", 1.0, 1100.0, 850),
+                    wind=wind, members=int(_number(case, "members", path, "case", 1, 1000, 5, True)),
                     source=path)
     except KeyError as exc:
         raise ParcelcastError(f"{path}: missing key {exc} (see the case-file format in "
                               "parcelcast/review.py)") from None
+
+
+def _table(data: dict, key: str, path: Path) -> dict:
+    if key not in data:
+        raise KeyError(key)
+    if not isinstance(data[key], dict):
+        raise InputFileError(path, f"[{key}] must be a table (a [{key}] section)")
+    return data[key]
+
+
+def _number(table: dict, key: str, path: Path, section: str, lo, hi, default=None,
+            integer: bool = False) -> float:
+    """A number from a case-file table, within ``lo..hi``, else an error naming the key."""
+    value = table.get(key, default)
+    if value is None:
+        raise KeyError(key)
+    kind = int if integer else (int, float)
+    if isinstance(value, bool) or not isinstance(value, kind) or not lo <= value <= hi:
+        what = "a whole number" if integer else "a number"
+        raise InputFileError(path, f"[{section}] {key} must be {what} in {lo:g}..{hi:g}; "
+                             f"found {type(value).__name__} {str(value)[:30]!r}")
+    return float(value)
 
 
 def build_review(case: Case, ds=None) -> dict:

@@ -241,29 +241,35 @@ def run_command(run, args, debug: bool = False) -> int:
     from parcelcast.io.atomic import guard_inputs
 
     name = f"parcelcast {args.command}"
+    caught: BaseException | None = None
     try:
         with _interrupt_on_terminate(), guard_inputs(_input_paths(args)):
             check_outputs(args)
             return int(run(args) or 0)
     except ParcelcastError as exc:
+        caught = exc
         message, status = f"error: {exc}", exc.exit_status
-    except KeyboardInterrupt:
+    except KeyboardInterrupt as exc:
+        caught = exc
         message, status = "interrupted; no output was left written in part", 130
     except BrokenPipeError:  # output piped into a reader that stopped (e.g. head)
         return EXIT_STATUS["ok"]
     except OSError as exc:
+        caught = exc
         where = f"{exc.filename}: " if exc.filename else ""
         message = f"error: {where}{exc.strerror or exc}"
         status = EXIT_STATUS["unreadable_input"]
-    except MemoryError:
+    except MemoryError as exc:
+        caught = exc
         message = ("error: not enough memory for this request; ask for less (fewer members, "
                    "a shorter span, wider output spacing, a smaller area)")
         status = EXIT_STATUS["usage"]
     except Exception as exc:  # noqa: BLE001 - the last line of defence of the command line
+        caught = exc
         message = (f"internal error ({type(exc).__name__}: {exc}). This is a fault in parcelcast; "
                    "rerun with --debug for the traceback and report it")
         status = EXIT_STATUS["internal"]
     if debug:
-        traceback.print_exc()
+        traceback.print_exception(caught)
     print(f"{name}: {message}", file=sys.stderr)
     return status

@@ -45,7 +45,8 @@ def run(args) -> int:
 
     if is_surface(args.level):
         check_surface_wind(args.wind)  # before any file is read
-    roles = ("temperature", "u", "v") if args.wind == "actual" else ("temperature", "geopotential")
+    # geopotential is looked for with the actual wind too: without u/v the error suggests --wind geostrophic
+    roles = ("temperature", "u", "v", "geopotential") if args.wind == "actual" else ("temperature", "geopotential")
     roles += ("surface_pressure", "orography")  # to mask levels below the ground
     ds = open_analysis(args.files, dict(args.var), roles=roles_at_level(roles, args.level),
                        levels=None if is_surface(args.level) else args.level * 100.0)  # that level only (Pa)

@@ -93,6 +93,15 @@ def run(args) -> int:
     from parcelcast.units import Q_
 
     ds = open_analysis(args.files, dict(args.var), roles=_roles(args))
+    if "time" not in ds.coords:
+        from parcelcast.errors import MissingCoordinateError
+
+        extra = [d for d in ds.dims if d not in ("level", "lat", "lon", "y", "x", "member")]
+        why = "trajectories follow the air through analyses at valid times"
+        if extra:
+            why += (f"; '{extra[0]}' is not a valid time (a climatology by {extra[0]} cannot be "
+                    "followed in time: pick one and give it a time, or use analyses)")
+        raise MissingCoordinateError("time", ds.attrs.get("source_files", "input"), ds.dims, why)
     hours = -args.back if args.back is not None else args.ahead
     if ds.sizes.get("time", 1) == 1:
         note("track: one analysis time only; the flow is treated as steady.")

@@ -135,9 +135,12 @@ def require(ds: xr.Dataset, *roles: str, purpose: str = "") -> None:
             f"missing for {purpose or 'this calculation'}: {', '.join(missing)}"
         )
     raw = ds.attrs.get("raw_variables", "")
+    hint = f"needed for {purpose}" if purpose else ""
+    if {"u", "v"} & set(missing) and "geopotential" in ds.data_vars:
+        hint += ("; " if hint else "") + ("the file has geopotential: --wind geostrophic "
+                                          "advects with the geostrophic wind from it")
     raise VariableNotFoundError(
-        missing[0], source, raw.split(",") if raw else list(ds.data_vars),
-        hint=f"needed for {purpose}" if purpose else "",
+        missing[0], source, raw.split(",") if raw else list(ds.data_vars), hint=hint,
     )
 
 

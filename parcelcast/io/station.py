@@ -50,27 +50,44 @@ class StationSeries:
 
 
 def read_station_series(path) -> StationSeries:
-    """Read a station CSV (see module docstring); raise a clear error naming the file."""
+    """Read a station CSV (see module docstring); raise a clear error naming the file and row.
+
+    Refused (:class:`~parcelcast.errors.InputFileError`, naming the row): a cell that is not a
+    number, a non-finite value (``inf``, ``1e400``), a temperature outside the plausible range
+    of near-surface air (:data:`parcelcast.io.roles.PLAUSIBLE_RANGE`), a time that is not ISO
+    8601, a time given twice.  Messages never quote the file's contents (the path may be any
+    readable file).
+    """
     import pandas as pd
+
+    from parcelcast.io.roles import PLAUSIBLE_RANGE
 
     path = Path(path)
     if not path.is_file():
         raise InputFileError(path, "no such file")
     try:
-        frame = pd.read_csv(path, dtype=str, keep_default_na=False)
-    except Exception as exc:
-        raise InputFileError(path, f"not a readable CSV file: {exc}") from None
-    columns = {c.strip().lower(): c for c in frame.columns}
-    if "time" not in columns:
-        raise InputFileError(path, f"no 'time' column; columns: {', '.join(frame.columns)}")
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, encoding="utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputFileError(path, "not UTF-8 text; save the station CSV as UTF-8") from None
+    except Exception:  # noqa: BLE001 - pandas raises many kinds for text that is not CSV
+        raise InputFileError(path, "not a readable CSV file (expected a header row with 'time' "
+                             "and one temperature column)") from None
+    columns = {str(c).strip().lower(): c for c in frame.columns}
     found = [c for c in columns if c in _TEMPERATURE_COLUMNS]
-    if len(found) != 1:
+    if "time" not in columns or len(found) != 1:
         raise InputFileError(
-            path, "expected exactly one temperature column named temperature_K, temperature_degC "
-            f"or temperature_degF; columns: {', '.join(frame.columns)}")
-    times = [parse_utc(text, f"{path}: row {row}")
-             for row, text in enumerate(frame[columns["time"]], start=2)]
-    raw = frame[columns[found[0]]].str.strip()
+            path, f"expected a header with a 'time' column and exactly one temperature column "
+            f"named temperature_K, temperature_degC or temperature_degF (the header has "
+            f"{len(frame.columns)} column(s), not these)")
+    column = columns[found[0]]
+    times = []
+    for row, text in enumerate(frame[columns["time"]], start=2):
+        try:
+            times.append(parse_utc(text))
+        except ParcelcastError:
+            raise InputFileError(path, f"row {row}, column time: not an ISO 8601 time such as "
+                                 "2017-01-01T12:00Z") from None
+    raw = frame[column].str.strip()
     values = np.full(len(raw), np.nan)
     for i, text in enumerate(raw):
         if not text:
@@ -78,14 +95,27 @@ def read_station_series(path) -> StationSeries:
         try:
             values[i] = float(text)
         except ValueError:
-            raise ParcelcastError(
-                f"{path}: row {i + 2}: column {columns[found[0]]}: {text!r} is not a number "
-                "(leave the cell empty for a missing value)") from None
+            raise InputFileError(path, f"row {i + 2}, column {found[0]}: not a number (leave the "
+                                 "cell empty for a missing value)") from None
+        if not np.isfinite(values[i]):
+            raise InputFileError(path, f"row {i + 2}, column {found[0]}: not a finite number "
+                                 "(leave the cell empty for a missing value)")
     kelvin = convert(values, _TEMPERATURE_COLUMNS[found[0]], "temperature", "station temperature",
                      str(path))
+    lo, hi = PLAUSIBLE_RANGE["near_surface_temperature"]
+    bad = np.flatnonzero(np.isfinite(kelvin) & ((kelvin < lo) | (kelvin > hi)))
+    if bad.size:
+        raise InputFileError(path, f"row {bad[0] + 2}, column {found[0]}: {kelvin[bad[0]]:.1f} K is "
+                             f"outside the plausible {lo:g}..{hi:g} K of near-surface air; check "
+                             "the unit in the header")
     times = np.array(times, dtype="datetime64[ns]")
     order = np.argsort(times, kind="stable")
     times, kelvin = times[order], kelvin[order]
+    same = np.flatnonzero(np.diff(times) == np.timedelta64(0, "ns"))
+    if same.size:
+        rows = sorted((int(order[same[0]]) + 2, int(order[same[0] + 1]) + 2))
+        raise InputFileError(path, f"rows {rows[0]} and {rows[1]} give the same time "
+                             f"{str(times[same[0]])[:16]}Z; each time once")
     return StationSeries(times, kelvin, _find_gaps(times, kelvin), str(path))
 
 

@@ -78,9 +78,13 @@ def _number(text: str, line: int, column: str, source: str) -> float:
     if t.lower() in _MISSING:
         return np.nan
     try:
-        return float(t)
+        value = float(t)
     except ValueError:
-        raise ProfileError(f"{source}: row {line}, column {column}: {t!r} is not a number.") from None
+        raise ProfileError(f"{source}: row {line}, column {column}: {t[:20]!r} is not a number.") from None
+    if not np.isfinite(value):
+        raise ProfileError(f"{source}: row {line}, column {column}: {t[:20]!r} is not a finite "
+                           "number (leave the cell empty, or write NaN, for a missing value).")
+    return value
 
 
 def read_profile_csv(path, latitude=None, longitude=None, time=None) -> Profile:
@@ -114,6 +118,8 @@ def read_profile_csv(path, latitude=None, longitude=None, time=None) -> Profile:
     source = str(path)
     try:
         text = path.read_text(encoding="utf-8-sig")
+    except UnicodeDecodeError:
+        raise InputFileError(path, "not UTF-8 text; save the profile CSV as UTF-8") from None
     except OSError as exc:
         raise InputFileError(path, f"cannot read: {exc.strerror or exc}") from None
     lines = [(i + 1, ln) for i, ln in enumerate(text.splitlines()) if ln.strip() and not ln.lstrip().startswith("#")]
@@ -158,6 +164,7 @@ def read_profile_csv(path, latitude=None, longitude=None, time=None) -> Profile:
     n = len(body)
     nan = np.full(n, np.nan)
     p = col("pressure")
+    _check_ground_pressure(p, line_numbers, columns["pressure"][2], source)
     t = col("temperature")
     notes = []
     if "dewpoint" in columns:
@@ -207,6 +214,23 @@ def read_profile_csv(path, latitude=None, longitude=None, time=None) -> Profile:
     prof = Profile(pressure=p, height=z, temperature=t, dewpoint=td, u=u, v=v, latitude=lat,
                    longitude=lon, time=when, source=source, rows=rows, notes=notes)
     return validate(prof, {q: name for q, (_, _, name) in columns.items()})
+
+
+#: a sounding starts at the ground: the highest stations are near 5 km, about 530 hPa (common
+#: practice: ICAO standard atmosphere, 5 km = 540 hPa); a lowest level above 300 hPa means the
+#: numbers are not in the header's unit (hPa numbers under a ``pressure_Pa`` header)
+LOWEST_GROUND_PRESSURE_PA = 30_000.0
+
+
+def _check_ground_pressure(p, line_numbers, name: str, source: str) -> None:
+    finite = np.flatnonzero(np.isfinite(p))
+    if finite.size and np.nanmax(p) < LOWEST_GROUND_PRESSURE_PA:
+        k = int(finite[np.argmax(p[finite])])
+        raise ProfileError(
+            f"{source}: row {line_numbers[k]}, column {name}: the highest pressure is "
+            f"{p[k] / 100:g} hPa after conversion; a profile starts near the ground (above "
+            f"{LOWEST_GROUND_PRESSURE_PA / 100:g} hPa). Check the unit in the header (hPa numbers "
+            "under a _Pa header?).")
 
 
 def _example_unit(q: str) -> str:
