@@ -104,10 +104,32 @@ def pressure_level_or_surface(text: str):
     if text.strip().lower() == "surface":
         return "surface"
     try:
-        return float(text)
+        value = float(text)
     except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and value > 0):
         raise argparse.ArgumentTypeError(
-            f"expected a pressure level in hPa such as 850, or 'surface'; got {text!r}") from None
+            f"expected a pressure level in hPa such as 850, or 'surface'; got {text!r}")
+    return value
+
+
+def bounded_number(low: float, high: float, what: str, integer: bool = False):
+    """An argparse type: a finite number (whole if ``integer``) within ``low..high``.
+
+    Bounds keep one mistyped argument (``--members 2000000``, ``--every 1e-5``) from running
+    until memory is gone; the message says the range and why.
+    """
+    def parse(text: str):
+        try:
+            value = int(text) if integer else float(text)
+        except ValueError:
+            kind = "a whole number" if integer else "a number"
+            raise argparse.ArgumentTypeError(f"expected {kind} for {what}; got {text!r}") from None
+        if not (math.isfinite(value) and low <= value <= high):
+            raise argparse.ArgumentTypeError(f"{what} must be within {low:g}..{high:g}; got {text!r}")
+        return value
+
+    return parse
 
 
 def utc_time(text: str):

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import argparse
 
-from parcelcast.cli._common import (add_input_arguments, iso_utc, json_number, jsonable, lat_lon,
-                                    pressure_level_or_surface, print_json, utc_time)
+from parcelcast.cli._common import (add_input_arguments, bounded_number, iso_utc, json_number, jsonable,
+                                    lat_lon, pressure_level_or_surface, print_json, utc_time)
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -22,7 +22,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help="use the mean over this radius around the station instead of the point")
     parser.add_argument("--wind", choices=("actual", "geostrophic"), default="actual",
                         help="advecting wind (default: actual)")
-    parser.add_argument("--members", type=int, default=5,
+    parser.add_argument("--members", type=bounded_number(1, 1000, "--members", integer=True), default=5,
                         help="trajectories in the cloud of starts for the Lagrangian spread (default 5)")
     parser.add_argument("--guidance", action="store_true",
                         help="add station guidance for the next 6, 12 and 24 h from the latest analysis")

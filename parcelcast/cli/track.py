@@ -3,10 +3,20 @@
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 
 from parcelcast.cli._area import add_area_argument
-from parcelcast.cli._common import add_input_arguments, lat_lon, print_json, utc_time
+from parcelcast.cli._common import add_input_arguments, bounded_number, lat_lon, print_json, utc_time
+
+
+#: longest trajectory beyond the analyses' span (all of it for a single, steady analysis):
+#: 10 days (common practice: kinematic trajectories lose their meaning within days)
+MAX_STEADY_HOURS = 240.0
+#: most trajectories one run computes (members x analysis members x series)
+MAX_TRAJECTORIES = 20_000
+#: most reported points along one trajectory (span / --every)
+MAX_POINTS = 10_000
 
 
 def _positive_hours(text: str) -> float:
@@ -14,8 +24,8 @@ def _positive_hours(text: str) -> float:
         value = float(text)
     except ValueError:
         raise argparse.ArgumentTypeError(f"expected a number of hours such as 24; got {text!r}") from None
-    if not value > 0:
-        raise argparse.ArgumentTypeError(f"hours must be positive; got {text!r}")
+    if not (value > 0 and math.isfinite(value)):
+        raise argparse.ArgumentTypeError(f"hours must be a positive finite number; got {text!r}")
     return value
 
 
@@ -48,7 +58,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         "potential-temperature surface (default: isobaric)")
     parser.add_argument("--scheme", choices=("petterssen", "rk4"), default="petterssen",
                         help="time stepping: iterative Petterssen or 4th-order Runge-Kutta")
-    parser.add_argument("--members", type=int, default=1, metavar="N",
+    parser.add_argument("--members", type=bounded_number(1, 1000, "--members", integer=True),
+                        default=1, metavar="N",
                         help="cloud of N starts around the point (on a ring of --cloud-radius, "
                         "+-5 hPa); every member of an ensemble analysis is run as well")
     parser.add_argument("--cloud-radius", type=_positive_km, metavar="KM",
@@ -105,6 +116,7 @@ def run(args) -> int:
     hours = -args.back if args.back is not None else args.ahead
     if ds.sizes.get("time", 1) == 1:
         note("track: one analysis time only; the flow is treated as steady.")
+    _check_ranges(ds, args, hours)
     lat, lon = args.point
     out = compute_trajectories(
         ds, lat, lon, Q_(args.level, "hPa"), Q_(hours, "h"), args.start,
@@ -181,6 +193,32 @@ def _spread_parts(out, group: int) -> dict:
         "spread_growth_fraction": None if end is None else json_number(
             out["spread_growth_fraction"].values[group, end], 4),
     }
+
+
+def _check_ranges(ds, args, hours: float) -> None:
+    """Bound the request by the data (span of the analyses) and by what one run can hold."""
+    import numpy as np
+
+    from parcelcast.errors import UsageError
+
+    option = "--back" if hours < 0 else "--ahead"
+    times = ds["time"].values
+    span = float((times[-1] - times[0]) / np.timedelta64(1, "h")) if times.size > 1 else 0.0
+    limit = span + MAX_STEADY_HOURS  # beyond the data parcels stop (reported as incomplete)
+    if abs(hours) > limit:
+        where = (f"the analyses' span of {span:g} h ({str(times[0])[:16]} to {str(times[-1])[:16]} "
+                 "UTC)" if times.size > 1 else "a single (steady) analysis")
+        raise UsageError(f"{option} {abs(hours):g} h is longer than {where} allows: at most "
+                         f"{limit:g} h")
+    if args.every > abs(hours) or abs(hours) / args.every > MAX_POINTS:
+        raise UsageError(f"--every {args.every:g} h gives {abs(hours) / args.every:.3g} points along "
+                         f"{abs(hours):g} h; choose between {abs(hours) / MAX_POINTS:.3g} h and "
+                         f"{abs(hours):g} h")
+    runs = args.members * ds.sizes.get("member", 1) * args.series
+    if runs > MAX_TRAJECTORIES:
+        raise UsageError(f"--members {args.members} x {ds.sizes.get('member', 1)} analysis "
+                         f"member(s) x --series {args.series} = {runs} trajectories; at most "
+                         f"{MAX_TRAJECTORIES} in one run")
 
 
 def _series(ds, args, hours):

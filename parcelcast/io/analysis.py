@@ -192,6 +192,9 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
                     "from incomplete input."
                 )
     else:
+        from parcelcast.io.netcdf_classic import check_complete
+
+        check_complete(path)  # a classic file cut short reads its lost records as zeros
         try:
             with warnings.catch_warnings():
                 # a NaN _FillValue is dropped by xarray with a warning: NaN stays NaN anyway
@@ -388,28 +391,37 @@ def _to_canonical(var: xr.DataArray, role: Role, path: Path) -> xr.DataArray:
 
 
 def _check_plausible(da: xr.DataArray, name: str, path: Path) -> None:
-    sample = da
-    for dim in ("member", "time"):
-        if dim in sample.dims:
-            sample = sample.isel({dim: 0})
-    values = np.asarray(sample.values, dtype=np.float64)
-    if not np.isfinite(values).any():
-        return
-    lo, hi = float(np.nanmin(values)), float(np.nanmax(values))
+    """Refuse values impossible for the quantity, at every time and member (the first time
+    the message names is the first that fails)."""
     source = f"{path} ({da.attrs.get('source', name)})"
     if name in PLAUSIBLE_RANGE:
         low, high = PLAUSIBLE_RANGE[name]
-        if lo < low or hi > high:
+        lo, hi = float(da.min(skipna=True)), float(da.max(skipna=True))
+        if lo < low or hi > high:  # NaN (all missing) compares False and passes
             hint = ""
             if name in ("temperature", "near_surface_temperature") and hi < 100:
                 hint = " (these look like degrees Celsius labelled as kelvin: correct the units)"
             raise ImplausibleValuesError(
                 name, source,
-                f"range {lo:.4g} .. {hi:.4g} {da.attrs['units']} after conversion; "
-                f"expected within {low:g} .. {high:g}{hint}",
+                f"range {lo:.4g} .. {hi:.4g} {da.attrs['units']} after conversion"
+                f"{_first_bad_time(da, low, high)}; expected within {low:g} .. {high:g}{hint}",
             )
-    if name == "geopotential" and "level" in sample.coords:
-        _check_geopotential(sample, source)
+    if name == "geopotential" and "level" in da.coords:
+        if "time" in da.dims:
+            for i in range(da.sizes["time"]):
+                _check_geopotential(da.isel(time=i), source)
+        else:
+            _check_geopotential(da, source)
+
+
+def _first_bad_time(da: xr.DataArray, low: float, high: float) -> str:
+    if "time" not in da.dims:
+        return ""
+    bad = ((da < low) | (da > high)).any([d for d in da.dims if d != "time"])
+    first = np.flatnonzero(np.asarray(bad.values))
+    if not first.size:
+        return ""
+    return f", first at {str(da['time'].values[first[0]])[:16]} UTC"
 
 
 def _check_geopotential(sample: xr.DataArray, source: str) -> None:

@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-from parcelcast.errors import GridError, ImplausibleValuesError, UnitsError
+from parcelcast.errors import GridError, ImplausibleValuesError, InputFileError, UnitsError
 from parcelcast.io.roles import COORDINATES
 from parcelcast.units import convert
 
@@ -206,6 +206,17 @@ def _standardise_member(ds: xr.Dataset) -> xr.Dataset:
     return ds.rename({name: "member"})
 
 
+def _refuse_repeated_times(times, path: Path) -> None:
+    """A valid time given twice in one file is refused: which of the two fields is meant
+    cannot be known (documented in the README; never silently reduced to the first)."""
+    repeated = np.flatnonzero(times[1:] == times[:-1])
+    if repeated.size:
+        stamps = sorted({str(times[i])[:16] for i in repeated})
+        raise InputFileError(path, f"the valid time {', '.join(stamps[:5])} UTC occurs more than "
+                             "once in the file; keep each time once (for example with "
+                             "xarray: ds.drop_duplicates('time'))")
+
+
 def normalise(ds: xr.Dataset, path: Path) -> xr.Dataset:
     """Order coordinates: lat ascending, lon contiguous ascending (projected grids: y and x
     ascending), level descending, time ascending."""
@@ -217,6 +228,7 @@ def normalise(ds: xr.Dataset, path: Path) -> xr.Dataset:
         ds = ds.sortby("level", ascending=False)
     if "time" in ds.dims:
         ds = ds.sortby("time")
+        _refuse_repeated_times(ds["time"].values, path)
         ds["time"].attrs = {"standard_name": "time", "long_name": "valid time (UTC)"}
     horizontal = ("y", "x") if "x" in ds.dims else ("lat", "lon")
     canonical = ("member", "time", "level", *horizontal)
