@@ -170,8 +170,7 @@ def build_scenario(resolution_deg: float = 1.0):
 
 def write_scenario(path, resolution_deg: float = 1.0) -> None:
     """Write the demo analysis to CF NetCDF (atomically)."""
-    from parcelcast.io.atomic import atomic_path
+    from parcelcast.io import cf_netcdf
 
     ds = build_scenario(resolution_deg)
-    with atomic_path(path) as tmp:
-        ds.to_netcdf(tmp, engine="netcdf4")
+    cf_netcdf.write(ds, path, ds.attrs["title"])

@@ -153,21 +153,10 @@ def _lat_lon_of(field, j: int, i: int) -> list[float]:
 
 
 def write_fields(fields, path) -> None:
-    """Write the level's fields as CF NetCDF, atomically."""
-    from parcelcast.io.atomic import atomic_path
+    """Write the level's fields as CF NetCDF, atomically (:mod:`parcelcast.io.cf_netcdf`)."""
+    from parcelcast.io import cf_netcdf
 
-    out = fields.copy()
-    if "crs" in out.coords:  # projected grid: a CF grid-mapping variable (CF 1.10, section 5.6)
-        import pyproj
-
-        out["crs"].attrs.update(pyproj.CRS.from_wkt(out["crs"].attrs["crs_wkt"]).to_cf())
-        for name in out.data_vars:
-            out[name].attrs["grid_mapping"] = "crs"
-    out.attrs["Conventions"] = "CF-1.10"
-    out.attrs["title"] = "parcelcast temperature advection"
-    out.attrs["comment"] = "Guidance, not an official forecast."
-    with atomic_path(path) as tmp:
-        out.to_netcdf(tmp, engine="netcdf4")
+    cf_netcdf.write(fields, path, "parcelcast temperature advection")
 
 
 def print_text(summary: dict) -> None:

@@ -18,7 +18,8 @@ def run(args) -> int:
 
     from parcelcast.cli import DISCLAIMER
     from parcelcast.cli._common import jsonable
-    from parcelcast.io.atomic import add_inputs, atomic_folder, atomic_path, write_text
+    from parcelcast.io import cf_netcdf
+    from parcelcast.io.atomic import add_inputs, atomic_folder, write_text
     from parcelcast.render.review_figures import split_maps_figure, timeline_figure, trajectories_figure
     from parcelcast.report import html_page, markdown
     from parcelcast.review import build_review, read_case
@@ -39,8 +40,8 @@ def run(args) -> int:
                 "" if row[k] is None else f"{row[k]:.4f}"
                 for k in ("observed_change_K", "advective_K", "vertical_K", "residual_K")])
         write_text(out / "timeline.csv", buffer.getvalue())
-        with atomic_path(out / "split-fields.nc") as tmp:
-            review["fields"].to_netcdf(tmp, engine="netcdf4")
+        cf_netcdf.write(review["fields"], out / "split-fields.nc",
+                        f"parcelcast case review split maps: {case.title}")
         summary = dict(review["eulerian"])
         summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
         summary["advective_difference_K"] = review["advective_difference_K"]

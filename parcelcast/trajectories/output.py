@@ -49,16 +49,77 @@ def write_trajectories(ds, path) -> Path:
     if kind is None:
         raise UsageError(
             f"cannot tell the output format from {path.name!r}; use one of: {', '.join(FORMATS)}")
+    if kind == "netcdf":
+        from parcelcast.io import cf_netcdf
+
+        return cf_netcdf.write(to_cf_dsg(ds), path, "parcelcast air-parcel trajectories")
     with atomic_path(path) as tmp:
-        if kind == "netcdf":
-            enc = {name: {"zlib": True} for name in ds.data_vars if ds[name].dtype.kind == "f"}
-            enc["time"] = {"units": "seconds since 1970-01-01 00:00:00", "dtype": "float64"}
-            ds.to_netcdf(tmp, engine="netcdf4", encoding=enc)
-        elif kind == "csv":
+        if kind == "csv":
             to_frame(ds).to_csv(tmp, index=False, float_format="%.6g")
         else:
             tmp.write_text(json.dumps(to_geojson(ds), allow_nan=False), encoding="utf-8")
     return path
+
+
+#: fill value of integer per-point variables past the end of a trajectory (CF 2.5.1, 9.3.2)
+INT_FILL = -1
+
+
+def to_cf_dsg(ds):
+    """The trajectories as a CF discrete-sampling-geometry dataset (CF 1.11 chapter 9).
+
+    Incomplete multidimensional array representation (section 9.3.2), ``featureType =
+    trajectory``: along each trajectory the valid points come first and in increasing time
+    (a back trajectory is stored from its origin to its arrival point), padding after them
+    is missing (NaN, NaT, or :data:`INT_FILL` with ``_FillValue``); every variable is on
+    ``(trajectory, obs)`` or ``(trajectory,)``: the spread of a start group is given on each
+    of the group's trajectories at the point of the same time; ``time lat lon pressure``
+    are coordinates of every per-point variable.
+    """
+    import xarray as xr
+
+    ntraj, nobs = ds.sizes["trajectory"], ds.sizes["obs"]
+    times = ds["time"].values
+    valid = ~np.isnat(times) & ~np.isnan(ds["lat"].values)
+    order = np.zeros((ntraj, nobs), dtype=np.intp)
+    filled = np.zeros((ntraj, nobs), dtype=bool)
+    for k in range(ntraj):
+        idx = np.flatnonzero(valid[k])
+        idx = idx[np.argsort(times[k, idx], kind="stable")]
+        order[k, :idx.size] = idx
+        filled[k, :idx.size] = True
+    group = np.asarray(ds["start_group"].values)
+
+    def points(values, attrs):
+        values = np.take_along_axis(np.asarray(values), order, axis=1)
+        attrs = dict(attrs)
+        if values.dtype.kind == "f":
+            values = np.where(filled, values, np.nan)
+        elif values.dtype.kind == "M":
+            values = np.where(filled, values, np.datetime64("NaT"))
+        elif values.dtype.kind in "iub":
+            values = np.where(filled, values.astype(np.int8 if values.dtype.itemsize == 1 else
+                                                    np.int32), INT_FILL)
+            attrs["_FillValue"] = values.dtype.type(INT_FILL)
+        return xr.Variable(("trajectory", "obs"), values, attrs)
+
+    data, coords = {}, {}
+    for name, var in ds.variables.items():
+        if var.dims == ("trajectory", "obs"):
+            (coords if name in ("time", "lat", "lon", "pressure") else data)[name] = points(
+                var.values, var.attrs)
+        elif var.dims == ("start_group", "obs"):  # one value per group: on each member
+            attrs = dict(var.attrs, long_name=var.attrs.get("long_name", name)
+                         + " (of this trajectory's start group, at this point's time)")
+            data[name] = points(var.values[group], attrs)
+        elif var.dims == ("trajectory",):
+            (coords if name == "trajectory_id" else data)[name] = xr.Variable(
+                ("trajectory",), var.values, var.attrs)
+    out = xr.Dataset(data, coords=coords, attrs=dict(ds.attrs))
+    out["pressure"].attrs.setdefault("axis", "Z")
+    out["row_size"].attrs["long_name"] = "number of valid points (they come first along obs)"
+    out.attrs["featureType"] = "trajectory"
+    return out
 
 
 def to_frame(ds):
