@@ -82,7 +82,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_area_argument(parser)
     parser.add_argument("--out", metavar="PATH",
                         help="write all trajectories; format from the suffix: .nc (CF DSG), "
-                        ".csv (tidy table), .geojson (one LineString per member)")
+                        ".csv (tidy table), .geojson (one line per member, cut at the "
+                        "antimeridian), .json (the --json summary); other suffixes are refused")
 
 
 def _roles(args) -> tuple:
@@ -100,8 +101,11 @@ def run(args) -> int:
     from parcelcast.io.analysis import open_analysis
     from parcelcast.progress import note
     from parcelcast.trajectories.api import compute_trajectories
-    from parcelcast.trajectories.output import to_json_dict, write_trajectories
+    from parcelcast.trajectories.output import output_format, to_json_dict, write_trajectories
     from parcelcast.units import Q_
+
+    if args.out:
+        output_format(args.out)  # an unknown suffix is refused before any computing
 
     ds = open_analysis(args.files, dict(args.var), roles=_roles(args))
     if "time" not in ds.coords:
@@ -127,7 +131,7 @@ def run(args) -> int:
     )
     _refuse_below_ground(out, args)
     if args.out:
-        write_trajectories(out, args.out)
+        write_trajectories(out, args.out, DISCLAIMER)
     if args.map:
         from pathlib import Path
 

@@ -7,10 +7,12 @@ dictionary printed by ``parcelcast track --json``.
 * NetCDF: the dataset as it is (featureType ``trajectory``, CF 1.10 section H.4).
 * CSV: one row per valid point, columns ``trajectory, analysis_member, cloud_member,
   start_group, status, obs, time, lat, lon, pressure_hPa`` and the sampled fields.
-* GeoJSON (RFC 7946): a FeatureCollection, one LineString per trajectory with its
-  properties (status, members, times of the first and last points); coordinates are
-  ``[lon, lat]`` in degrees, longitudes unwrapped along the path so a line crossing the
-  dateline does not jump (RFC 7946 section 3.1.9 allows this or splitting).
+* GeoJSON (RFC 7946): a FeatureCollection, one feature per trajectory with its
+  properties (status, members, times and pressures of its points); coordinates are
+  ``[lon, lat]`` in degrees within -180..180; a path crossing the antimeridian is cut there
+  into a MultiLineString (RFC 7946 section 3.1.9; the cut points, interpolated on the
+  ``antimeridian`` package's straight segments, are added to the geometry only).
+* JSON (``.json``): the summary document of ``parcelcast track --json``.
 """
 
 from __future__ import annotations
@@ -23,7 +25,7 @@ import numpy as np
 from parcelcast.io.atomic import atomic_path
 from parcelcast.errors import UsageError
 
-FORMATS = {".nc": "netcdf", ".csv": "csv", ".geojson": "geojson", ".json": "geojson"}
+FORMATS = {".nc": "netcdf", ".csv": "csv", ".geojson": "geojson", ".json": "json"}
 
 
 def _iso(t) -> str | None:
@@ -39,16 +41,22 @@ def _num(x, digits=4):
     return round(x, digits) if np.isfinite(x) else None
 
 
-def write_trajectories(ds, path) -> Path:
-    """Write trajectories to ``path``; the format follows the suffix (.nc, .csv, .geojson).
+def output_format(path) -> str:
+    """The format the suffix of ``path`` asks for; :class:`UsageError` for any other suffix."""
+    kind = FORMATS.get(Path(path).suffix.lower())
+    if kind is None:
+        raise UsageError(f"cannot tell the output format from {Path(path).name!r}; "
+                         f"use one of: {', '.join(FORMATS)}")
+    return kind
+
+
+def write_trajectories(ds, path, disclaimer: str = "") -> Path:
+    """Write trajectories to ``path``; the format follows the suffix (.nc, .csv, .geojson, .json).
 
     Raises :class:`parcelcast.errors.UsageError` for an unknown suffix (listing the valid ones).
     """
     path = Path(path)
-    kind = FORMATS.get(path.suffix.lower())
-    if kind is None:
-        raise UsageError(
-            f"cannot tell the output format from {path.name!r}; use one of: {', '.join(FORMATS)}")
+    kind = output_format(path)
     if kind == "netcdf":
         from parcelcast.io import cf_netcdf
 
@@ -56,6 +64,9 @@ def write_trajectories(ds, path) -> Path:
     with atomic_path(path) as tmp:
         if kind == "csv":
             to_frame(ds).to_csv(tmp, index=False, float_format="%.6g")
+        elif kind == "json":
+            tmp.write_text(json.dumps(to_json_dict(ds, disclaimer), indent=2, allow_nan=False) + "\n",
+                           encoding="utf-8")
         else:
             tmp.write_text(json.dumps(to_geojson(ds), allow_nan=False), encoding="utf-8")
     return path
@@ -149,24 +160,33 @@ def to_frame(ds):
     return pd.DataFrame(cols)
 
 
-def _unwrap(lon):
-    return np.rad2deg(np.unwrap(np.deg2rad(lon)))
+def _line_geometry(lon, lat) -> dict:
+    """A path as GeoJSON, longitudes in -180..180, cut at the antimeridian (RFC 7946 3.1.9)."""
+    import antimeridian
+    import shapely.geometry
+
+    lon = (np.asarray(lon) + 180.0) % 360.0 - 180.0
+    points = list(zip(lon, lat))
+    if len(points) == 1:
+        points = points * 2  # a LineString needs two positions
+    shape = antimeridian.fix_line_string(shapely.geometry.LineString(points), great_circle=False)
+    lines = list(shape.geoms) if shape.geom_type == "MultiLineString" else [shape]
+    coords = [[[_num(x, 5), _num(y, 5)] for x, y in line.coords] for line in lines]
+    if len(coords) == 1:
+        return {"type": "LineString", "coordinates": coords[0]}
+    return {"type": "MultiLineString", "coordinates": coords}
 
 
 def to_geojson(ds) -> dict:
-    """GeoJSON FeatureCollection: one LineString per trajectory (RFC 7946)."""
+    """GeoJSON FeatureCollection: one (Multi)LineString per trajectory (RFC 7946)."""
     feats = []
     for k in range(ds.sizes["trajectory"]):
         lat = ds.lat.values[k]
         ok = ~np.isnan(lat)
-        lon = _unwrap(ds.lon.values[k][ok])
-        coords = [[_num(a, 5), _num(b, 5)] for a, b in zip(lon, lat[ok])]
-        if len(coords) == 1:
-            coords = coords * 2  # a LineString needs two positions
         times = ds.time.values[k][ok]
         feats.append({
             "type": "Feature",
-            "geometry": {"type": "LineString", "coordinates": coords},
+            "geometry": _line_geometry(ds.lon.values[k][ok], lat[ok]),
             "properties": {
                 "trajectory": str(ds.trajectory_id.values[k]),
                 "status": str(ds.status_name.values[k]),
