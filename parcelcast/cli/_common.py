@@ -200,7 +200,10 @@ def jsonable(obj, digits: int = 4):
 
 
 def print_json(obj) -> None:
-    json.dump(obj, sys.stdout, indent=2, allow_nan=False)
+    """Print a command's JSON document (strict JSON, ``schema_version`` first)."""
+    from parcelcast.schemas import stamp
+
+    json.dump(stamp(obj), sys.stdout, indent=2, allow_nan=False)
     sys.stdout.write("\n")
 
 

@@ -32,7 +32,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         "geopotential (default: actual)")
     parser.add_argument("--json", action="store_true", help="print JSON instead of text")
     parser.add_argument("--out", metavar="PATH.nc", help="write the fields to CF NetCDF")
-    parser.add_argument("--map", metavar="PATH.png", help="draw a map to PNG")
+    parser.add_argument("--plot", "--map", dest="map", metavar="PATH.png",
+                        help="draw a map to PNG (--map: earlier spelling)")
     add_area_argument(parser)
 
 

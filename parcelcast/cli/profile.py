@@ -60,7 +60,9 @@ def build_report(profile, result, comparison=None, selection=None) -> dict:
         doc.update(selection)
     doc.update({
         "source": profile.source,
-        "latitude": profile.latitude,
+        "lat": profile.latitude,  # the vocabulary of every command (README)
+        "lon": profile.longitude,
+        "latitude": profile.latitude,  # earlier spelling, kept for existing readers
         "longitude": profile.longitude,
         "time": _common.iso_utc(profile.time) if profile.time is not None else None,
         "levels": profile.nlev,

@@ -10,6 +10,28 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--out", metavar="DIR", help="output folder (default: review-<case name>)")
 
 
+def review_document(case, review: dict, disclaimer: str) -> dict:
+    """review.json: the split over the case window, in the layout of ``split --json``
+    (``start``, ``end``, ``lat``, ``lon``, ``level_hPa``; ``lagrangian.origin`` as {lat, lon})."""
+    from parcelcast.cli._common import iso_utc
+
+    lagrangian = {k: v for k, v in review["lagrangian"].items()
+                  if k not in ("paths", "origin_lat", "origin_lon")}
+    lagrangian["origin"] = {"lat": review["lagrangian"].get("origin_lat"),
+                            "lon": review["lagrangian"].get("origin_lon")}
+    return {
+        "title": case.title,
+        "station": {"name": case.station_name, "lat": case.lat, "lon": case.lon},
+        "start": iso_utc(case.start), "end": iso_utc(case.end),
+        "lat": case.lat, "lon": case.lon, "level_hPa": case.level_hpa, "wind": case.wind,
+        **review["eulerian"],
+        "lagrangian": lagrangian,
+        "advective_difference_K": review["advective_difference_K"],
+        "consistency": review.get("consistency"),
+        "disclaimer": disclaimer,
+    }
+
+
 def run(args) -> int:
     import csv
     import io
@@ -18,6 +40,7 @@ def run(args) -> int:
 
     from parcelcast.cli import DISCLAIMER
     from parcelcast.cli._common import jsonable
+    from parcelcast.schemas import stamp
     from parcelcast.io import cf_netcdf
     from parcelcast.io.atomic import add_inputs, atomic_folder, write_text
     from parcelcast.render.review_figures import split_maps_figure, timeline_figure, trajectories_figure
@@ -42,12 +65,9 @@ def run(args) -> int:
         write_text(out / "timeline.csv", buffer.getvalue())
         cf_netcdf.write(review["fields"], out / "split-fields.nc",
                         f"parcelcast case review split maps: {case.title}")
-        summary = dict(review["eulerian"])
-        summary["lagrangian"] = {k: v for k, v in review["lagrangian"].items() if k != "paths"}
-        summary["advective_difference_K"] = review["advective_difference_K"]
-        summary["consistency"] = review["consistency"]
-        summary["disclaimer"] = DISCLAIMER
-        write_text(out / "review.json", json.dumps(jsonable(summary), indent=2, allow_nan=False) + "\n")
+        write_text(out / "review.json",
+                   json.dumps(stamp(jsonable(review_document(case, review, DISCLAIMER))), indent=2,
+                              allow_nan=False) + "\n")
         write_text(out / "report.md", markdown(review))
         write_text(out / "report.html", html_page(review))
     print(f"case review written to {target}/ (report.md, report.html, figures, timeline.csv)")

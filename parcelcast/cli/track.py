@@ -41,8 +41,9 @@ def _positive_km(text: str) -> float:
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
     add_input_arguments(parser)
-    parser.add_argument("--from", dest="point", type=lat_lon, required=True, metavar="LAT,LON",
-                        help="arrival point (with --back) or release point (with --ahead), degrees")
+    parser.add_argument("--at", "--from", dest="point", type=lat_lon, required=True, metavar="LAT,LON",
+                        help="arrival point (with --back) or release point (with --ahead), degrees "
+                        "(--from: earlier spelling)")
     parser.add_argument("--level", type=float, required=True, metavar="HPA",
                         help="pressure of the point in hPa, e.g. 850")
     span = parser.add_mutually_exclusive_group(required=True)
@@ -50,9 +51,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                       help="back trajectory: where the air came from, this many hours earlier")
     span.add_argument("--ahead", type=_positive_hours, metavar="HOURS",
                       help="forward trajectory: where the air goes in this many hours")
-    parser.add_argument("--start", type=utc_time, metavar="ISO",
+    parser.add_argument("--time", "--start", dest="start", type=utc_time, metavar="ISO",
                         help="arrival time for --back, release time for --ahead (UTC unless a zone "
-                        "is given); default: the last analysis time for --back, the first for --ahead")
+                        "is given); default: the last analysis time for --back, the first for "
+                        "--ahead (--start: earlier spelling)")
     parser.add_argument("--mode", choices=("isobaric", "3d", "isentropic"), default="isobaric",
                         help="stay on the pressure level, move with omega, or stay on the "
                         "potential-temperature surface (default: isobaric)")

@@ -65,8 +65,10 @@ def write_trajectories(ds, path, disclaimer: str = "") -> Path:
         if kind == "csv":
             to_frame(ds).to_csv(tmp, index=False, float_format="%.6g")
         elif kind == "json":
-            tmp.write_text(json.dumps(to_json_dict(ds, disclaimer), indent=2, allow_nan=False) + "\n",
-                           encoding="utf-8")
+            from parcelcast.schemas import stamp
+
+            tmp.write_text(json.dumps(stamp(to_json_dict(ds, disclaimer)), indent=2,
+                                      allow_nan=False) + "\n", encoding="utf-8")
         else:
             tmp.write_text(json.dumps(to_geojson(ds), allow_nan=False), encoding="utf-8")
     return path
