@@ -173,10 +173,14 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
     if fmt == "grib":
         from parcelcast.io.grib import open_grib
 
-        groups = open_grib(path, wanted, overrides)
+        groups = open_grib(path, wanted, overrides, allow_damaged)
         crs = groups.crs()
-        upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
-        single = [coordinates.standardise(g, path, crs) for g in groups.single]
+        try:
+            upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
+            single = [coordinates.standardise(g, path, crs) for g in groups.single]
+        except KeyError as exc:  # cfgrib: a message's values do not decode (found by fuzzing)
+            raise InputFileError(path, f"GRIB data cannot be decoded (no {exc}); the file "
+                                 "is damaged") from None
         grid_relative = groups.scan.winds_grid_relative
         earth = earth_radius.from_grib_keys(groups.scan.earth)
         raw_names = groups.names
@@ -394,6 +398,9 @@ def _check_plausible(da: xr.DataArray, name: str, path: Path) -> None:
     """Refuse values impossible for the quantity, at every time and member (the first time
     the message names is the first that fails)."""
     source = f"{path} ({da.attrs.get('source', name)})"
+    if da.size == 0:
+        raise InputFileError(path, f"{name} holds no values (a dimension of length 0: "
+                             f"{dict(da.sizes)})")
     if name in PLAUSIBLE_RANGE:
         low, high = PLAUSIBLE_RANGE[name]
         lo, hi = float(da.min(skipna=True)), float(da.max(skipna=True))

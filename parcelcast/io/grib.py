@@ -94,6 +94,18 @@ _PROJECTION_KEYS = {
 }
 
 
+def _check_grid_size(gid) -> None:
+    """A regular grid whose Ni x Nj differs from its number of points is damaged (eccodes
+    would crash computing its coordinates, found by fuzzing: tests/properties)."""
+    import eccodes
+
+    points = eccodes.codes_get(gid, "numberOfDataPoints")
+    if eccodes.codes_is_defined(gid, "Ni") and eccodes.codes_is_defined(gid, "Nj"):
+        ni, nj = eccodes.codes_get(gid, "Ni"), eccodes.codes_get(gid, "Nj")
+        if ni > 0 and nj > 0 and ni * nj != points:
+            raise ValueError(f"grid of {ni} x {nj} points but {points} values stated")
+
+
 def _note_projection(gid, name: str, scan: GribScan) -> None:
     """Record the projection of the grid and whether u/v are relative to it."""
     import eccodes
@@ -154,6 +166,44 @@ def _message_length(data: bytes, offset: int) -> int:
     return 0
 
 
+#: GRIB 2 sections that may follow each section (WMO Manual on Codes, FM 92 GRIB edition 2:
+#: 0, 1, [2], 3, 4, 5, 6, 7, then 2/3/4 again for further fields, then 8 = "7777")
+_GRIB2_NEXT = {1: {2, 3}, 2: {3}, 3: {4}, 4: {5}, 5: {6}, 6: {7}, 7: {2, 3, 4}}
+
+
+def _structure_problem(message: bytes) -> str:
+    """Why the sections of one GRIB message do not add up to it ('' if they do).
+
+    Walked here, not by eccodes: eccodes decodes some inconsistent messages (logging an
+    error) and can crash the process later when reading the same file (found by fuzzing).
+    """
+    edition = message[7]
+    end = len(message) - 4
+    if edition == 2:
+        pos, previous = 16, None
+        while pos < end:
+            length, number = int.from_bytes(message[pos:pos + 4], "big"), message[pos + 4]
+            allowed = {1} if previous is None else _GRIB2_NEXT.get(previous, set())
+            if number not in allowed or length < 5 or pos + length > end:
+                return f"section {number} at byte {pos} (length {length}) does not fit the message"
+            pos, previous = pos + length, number
+        return "" if pos == end and previous == 7 else "the sections do not end at the 7777 marker"
+    if edition == 1:
+        pos = 8
+        if end < pos + 8:
+            return "the message is too short for its sections"
+        flags = message[pos + 7]
+        parts = ["product definition"] + (["grid description"] if flags & 0x80 else []) + (
+            ["bit map"] if flags & 0x40 else []) + ["binary data"]
+        for part in parts:
+            length = int.from_bytes(message[pos:pos + 3], "big")
+            if length < 3 or pos + length > end:
+                return f"the {part} section at byte {pos} (length {length}) does not fit the message"
+            pos += length
+        return "" if pos == end else "the sections do not end at the 7777 marker"
+    return f"unknown GRIB edition {edition}"
+
+
 def _load_proj_first() -> None:
     """Import pyproj before eccodes: some eccodes wheels bundle their own PROJ, and the
     library loaded second aborts the process (see DEVELOPERS.md, 'GRIB and PROJ')."""
@@ -206,11 +256,16 @@ def scan_messages(path: Path) -> GribScan:
                 length = _message_length(data, offset)
                 ok = (length > 16 and offset + length <= len(data)
                       and data[offset + length - 4:offset + length] == b"7777")
+                structure = _structure_problem(data[offset:offset + length]) if ok else ""
+                if structure:  # checked before eccodes reads it: eccodes can crash on these
+                    ok = False
+                    scan.problem = scan.problem or f"message at byte {offset}: {structure}"
                 if ok:
                     try:
                         for gid in _fields_of_message(handle, offset,
                                                       _field_count(data, offset, length)):
                             try:
+                                _check_grid_size(gid)
                                 scan.messages.append(_message_keys(gid, names_of_parameter))
                                 _note_projection(gid, scan.messages[-1]["shortName"], scan)
                             finally:
@@ -302,7 +357,7 @@ class GribGroups:
         return projection_crs(self.scan.grid) if self.scan.grid else None
 
 
-def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
+def open_grib(path: Path, roles=None, overrides=None, allow_damaged: bool = False) -> GribGroups:
     """Open the field groups of a GRIB file that can hold ``roles``; raise InputFileError
     if nothing decodes.
 
@@ -310,13 +365,24 @@ def open_grib(path: Path, roles=None, overrides=None) -> GribGroups:
     name, GRIB short name, common name, or the ``--var`` override) at a fitting level
     type are handed to cfgrib, through ``filter_by_keys``: the cost follows the fields
     used, not the number of field groups in the file.
+
+    A damaged file is refused before cfgrib reads it (``IncompleteInputError``) unless
+    ``allow_damaged``: eccodes can abort the whole process on some damaged messages.
     """
     _load_proj_first()
     import cfgrib
 
+    from parcelcast.errors import IncompleteInputError
+
     scan = cached_scan(path)
     if scan.decoded == 0:
         raise InputFileError(path, f"no GRIB message could be decoded ({scan.problem or 'empty file'})")
+    if scan.damaged and not allow_damaged:
+        raise IncompleteInputError(
+            f"{path}: the GRIB file is damaged and opens only in part: {scan.decoded} GRIB "
+            f"field(s) decoded, {scan.failed} message(s) could not be ({scan.problem}); readable: "
+            f"{scan.summary() or 'nothing'}. Fields and levels beyond those listed are missing; "
+            "refusing to compute from incomplete input.")
     backend = {"indexpath": _index_path(path)}
     parts = {}
     for part, filter_by_keys in grib_filters(scan, roles, overrides).items():
