@@ -196,10 +196,10 @@ def test_list_and_unknown_station(capsys):
     doc = json.loads(capsys.readouterr().out)
     assert [r["station"] for r in doc["ascents"]] == STATIONS
     assert doc["ascents"][2]["levels"] == 114 and doc["ascents"][2]["lat"] == -90.0
-    assert main(["profile", path, "--station", "12345"]) == 2
+    assert main(["profile", path, "--station", "12345"]) == 5  # nothing to compute (errors.EXIT_STATUS)
     err = capsys.readouterr().err
     assert "12345" in err and "71907" in err
-    assert main(["profile", path]) == 2  # several ascents: which one?
+    assert main(["profile", path]) == 5  # several ascents, none chosen (errors.EXIT_STATUS)
     assert "--station" in capsys.readouterr().err
 
 
@@ -394,6 +394,6 @@ def test_truncated_file_is_refused(tmp_path, capsys):
     data = data_file(SEVEN).read_bytes()
     bad = tmp_path / "cut.bufr"
     bad.write_bytes(data[: len(data) // 2])
-    assert main(["profile", str(bad), "--list"]) == 2
+    assert main(["profile", str(bad), "--list"]) == 3  # unreadable input (errors.EXIT_STATUS)
     err = capsys.readouterr().err
     assert str(bad) in err and "cannot be read" in err

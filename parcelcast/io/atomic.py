@@ -66,9 +66,18 @@ def _check_folder(folder: Path, target: Path) -> None:
         raise OutputError(target, f"the folder {folder} is not writable")
 
 
-def check_file_target(target) -> Path:
-    """Refuse early (before any computing) an output file that could not be written."""
+def check_file_target(target, create_folder: bool = False) -> Path:
+    """Refuse early (before any computing) an output file that could not be written.
+
+    The command line refuses a folder that does not exist; library callers of
+    :func:`atomic_path` get it created (``create_folder``).
+    """
     target = Path(target)
+    if create_folder and not target.parent.exists():
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise OutputError(target, f"cannot create its folder: {exc.strerror or exc}") from None
     _check_folder(target.parent, target)
     if target.is_dir():
         raise OutputError(target, "it is a folder; give a file name (for example "
@@ -99,15 +108,16 @@ def atomic_path(target):
     """Yield a temporary path in the target's folder; on success rename it onto ``target``.
 
     If the block raises (or the command is interrupted), the temporary file is removed and
-    ``target`` is left untouched (an earlier complete file stays as it was).  The target's
-    folder must exist; a target that is a folder or one of the inputs is refused.
+    ``target`` is left untouched (an earlier complete file stays as it was).  A missing folder
+    is created (the command line refuses it before computing: ``cli._common.check_outputs``);
+    a target that is a folder or one of the inputs is refused.
 
     Example
     -------
     >>> with atomic_path("out.nc") as tmp:          # doctest: +SKIP
     ...     dataset.to_netcdf(tmp)
     """
-    target = check_file_target(target)
+    target = check_file_target(target, create_folder=True)
     folder = target.parent
     try:
         fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
