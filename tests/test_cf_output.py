@@ -136,3 +136,21 @@ def test_back_trajectory_ends_at_the_arrival_point(written):
     assert ds["lat"].values[central, n - 1] == pytest.approx(51.5)
     assert ds["lon"].values[central, n - 1] == pytest.approx(-33.0)
     assert "left_domain" in set(ds["status_name"].values)  # the padding case is exercised
+
+
+def test_trajectory_file_keeps_every_variable(written):
+    """Nothing is dropped on the way to the chapter-9 layout (per-group values go on each
+    trajectory of the group)."""
+    from parcelcast.io.analysis import open_analysis
+    from parcelcast.trajectories.api import compute_trajectories
+    from parcelcast.trajectories.output import to_cf_dsg
+    from parcelcast.units import Q_
+
+    ds = open_analysis(written["demo analysis"])
+    out = compute_trajectories(ds, 51.5, 2.0, Q_(850, "hPa"), Q_(-6, "h"), None, members=3)
+    cf = to_cf_dsg(out)
+    assert set(out.variables) - set(out.dims) <= set(cf.variables)
+    group = out["start_group"].values
+    for name, var in out.variables.items():
+        if var.dims == ("start_group",):
+            np.testing.assert_array_equal(cf[name].values, var.values[group])

@@ -125,9 +125,15 @@ def to_cf_dsg(ds):
             attrs = dict(var.attrs, long_name=var.attrs.get("long_name", name)
                          + " (of this trajectory's start group, at this point's time)")
             data[name] = points(var.values[group], attrs)
+        elif var.dims == ("start_group",):  # one value per group: on each of its trajectories
+            data[name] = xr.Variable(("trajectory",), np.asarray(var.values)[group], dict(
+                var.attrs, long_name=var.attrs.get("long_name", name) + " (of this trajectory's "
+                "start group)"))
         elif var.dims == ("trajectory",):
             (coords if name == "trajectory_id" else data)[name] = xr.Variable(
                 ("trajectory",), var.values, var.attrs)
+        elif name not in ds.dims:
+            raise ValueError(f"{name}{var.dims}: no place for it in a CF trajectory file")
     out = xr.Dataset(data, coords=coords, attrs=dict(ds.attrs))
     out["pressure"].attrs.setdefault("axis", "Z")
     out["row_size"].attrs["long_name"] = "number of valid points (they come first along obs)"
