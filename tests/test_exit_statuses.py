@@ -228,3 +228,19 @@ def test_version_and_debug_in_help():
     done = subprocess.run([*cli_command(), "--help"], capture_output=True, text=True, timeout=60)
     assert "--version" in done.stdout and "--debug" in done.stdout
     time.sleep(0)
+
+
+def test_leftovers_of_a_killed_writer_are_removed(tmp_path):
+    """SIGKILL leaves a .part file (no clean-up can run); the next write of the target removes
+    it, but never the part file of a process still running."""
+    done = subprocess.run([sys.executable, "-c", "import os; print(os.getpid())"],
+                          capture_output=True, text=True, timeout=60)
+    dead = int(done.stdout)  # a process that has ended
+    stale = tmp_path / f".out.nc.{dead}.abc123.part"
+    stale.write_text("half")
+    running = tmp_path / f".out.nc.{os.getppid()}.def456.part"  # our parent: alive
+    running.write_text("being written")
+    with atomic_path(tmp_path / "out.nc") as tmp:
+        tmp.write_text("whole")
+    assert not stale.exists() and running.exists()
+    assert (tmp_path / "out.nc").read_text() == "whole"

@@ -176,7 +176,7 @@ def run(args) -> int:
     bufr = len(args.files) == 1 and is_bufr(args.files[0])
     if (args.station or args.list) and not bufr:
         raise UsageError("--station and --list need one BUFR file of radiosonde ascents "
-                            f"(got {', '.join(args.files)})")
+                         f"(got {', '.join(args.files)})")
     if bufr:
         chosen = _bufr_profile(args)
         if chosen is None:

@@ -1,7 +1,8 @@
 """Write outputs whole or not at all, and never over an input.
 
-* :func:`atomic_path`: one file, written to a temporary ``.NAME.*.part`` file beside the target
-  and renamed onto it; on any failure or interruption the ``.part`` file is removed.
+* :func:`atomic_path`: one file, written to a temporary ``.NAME.PID.*.part`` file beside the
+  target and renamed onto it; on any failure or interruption (SIGTERM, Ctrl-C) the ``.part``
+  file is removed, and leftovers of a process killed outright are removed by the next write.
 * :func:`atomic_folder`: a folder of several outputs (a review), written into a temporary sibling
   folder and swapped in whole; an older output folder is replaced only once the new one is complete.
 * :func:`guard_inputs` / :func:`add_inputs`: the files a command reads; writing onto one of them
@@ -45,6 +46,32 @@ def add_inputs(paths) -> None:
         matches = glob.glob(str(text)) if glob.has_magic(str(text)) else [str(text)]
         for name in matches:
             _INPUTS.add(Path(name).resolve())
+
+
+def _part_prefix(target: Path) -> str:
+    """``.NAME.PID.``: temporary outputs name the process writing them."""
+    return f".{target.name}.{os.getpid()}."
+
+
+def _remove_stale_parts(target: Path) -> None:
+    """Remove ``.part`` leftovers of ``target`` whose writing process no longer exists
+    (killed with SIGKILL or by a power cut, when no clean-up could run)."""
+    for part in target.parent.glob(f".{glob.escape(target.name)}.*.part"):
+        pid_text = part.name[len(target.name) + 2:].split(".", 1)[0]
+        if not pid_text.isdigit() or int(pid_text) == os.getpid() or _alive(int(pid_text)):
+            continue
+        with contextlib.suppress(OSError):
+            shutil.rmtree(part) if part.is_dir() else part.unlink()
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:  # exists but belongs to someone else
+        return True
+    return True
 
 
 def _check_not_input(target: Path) -> None:
@@ -119,8 +146,9 @@ def atomic_path(target):
     """
     target = check_file_target(target, create_folder=True)
     folder = target.parent
+    _remove_stale_parts(target)
     try:
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
+        fd, tmp_name = tempfile.mkstemp(prefix=_part_prefix(target), suffix=".part", dir=folder)
     except OSError as exc:
         raise OutputError(target, exc.strerror or str(exc)) from None
     os.close(fd)
@@ -149,8 +177,9 @@ def atomic_folder(target):
     """
     target = check_folder_target(target)
     parent = target.parent
+    _remove_stale_parts(target)
     try:
-        tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".part", dir=parent))
+        tmp = Path(tempfile.mkdtemp(prefix=_part_prefix(target), suffix=".part", dir=parent))
     except OSError as exc:
         raise OutputError(target, exc.strerror or str(exc)) from None
     old = None
