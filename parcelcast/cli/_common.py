@@ -208,7 +208,7 @@ def print_json(obj) -> None:
 
 
 #: commands whose ``--out`` is a folder of several outputs (every other --out/--map/--plot is a file)
-FOLDER_OUTPUT_COMMANDS = ("review", "demo")
+FOLDER_OUTPUT_COMMANDS = ("review", "demo", "brief")
 
 #: argument names that hold files a command reads (protected from being overwritten)
 INPUT_ARGUMENTS = ("files", "case", "obs")

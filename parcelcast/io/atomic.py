@@ -215,30 +215,3 @@ def write_text(target, text: str) -> None:
     with atomic_path(target) as tmp:
         tmp.write_text(text, encoding="utf-8")
 
-
-@contextlib.contextmanager
-def atomic_folder(target):
-    """Yield a temporary sibling folder; on success it replaces ``target`` as a whole.
-
-    If the block raises, the temporary folder is removed and an earlier ``target`` is
-    left as it was.  An existing ``target`` is moved aside first and removed only once
-    the new folder is in place.
-    """
-    import shutil
-
-    target = Path(target)
-    target.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent))
-    try:
-        yield tmp
-        os.chmod(tmp, 0o777 & ~_current_umask())  # mkdtemp makes 0700
-        old = None
-        if target.exists():
-            old = Path(tempfile.mkdtemp(prefix=f".{target.name}.", suffix=".old", dir=target.parent))
-            os.replace(target, old / target.name)
-        os.replace(tmp, target)
-        if old is not None:
-            shutil.rmtree(old)
-    finally:
-        if tmp.exists():
-            shutil.rmtree(tmp)
