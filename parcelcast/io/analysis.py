@@ -175,12 +175,14 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
 
         groups = open_grib(path, wanted, overrides, allow_damaged)
         crs = groups.crs()
+        from eccodes import CodesInternalError
+
         try:
             upper = [coordinates.standardise(g, path, crs) for g in groups.upper]
             single = [coordinates.standardise(g, path, crs) for g in groups.single]
-        except KeyError as exc:  # cfgrib: a message's values do not decode (found by fuzzing)
-            raise InputFileError(path, f"GRIB data cannot be decoded (no {exc}); the file "
-                                 "is damaged") from None
+        except (KeyError, CodesInternalError) as exc:  # values that do not decode (fuzzing)
+            raise InputFileError(path, f"GRIB data cannot be decoded ({type(exc).__name__}: "
+                                 f"{exc}); the file is damaged") from None
         grid_relative = groups.scan.winds_grid_relative
         earth = earth_radius.from_grib_keys(groups.scan.earth)
         raw_names = groups.names

@@ -162,6 +162,9 @@ def _standardise_level(ds: xr.Dataset, path: Path) -> xr.Dataset:
 def _standardise_time(ds: xr.Dataset, path: Path) -> xr.Dataset:
     if "valid_time" in ds.coords:
         valid = ds["valid_time"]
+        if not np.issubdtype(valid.dtype, np.datetime64):  # e.g. a damaged year: cftime objects
+            raise InputFileError(path, "the valid time does not decode to a date between the "
+                                 "years 1678 and 2262 (the GRIB date is damaged)")
         if valid.ndim == 0:
             if "time" in ds.dims:
                 raise GridError(f"{path}: several reference times with one valid time")

@@ -17,7 +17,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from datasets import raw_cf, small_atmosphere
@@ -301,6 +301,8 @@ except Exception:  # noqa: BLE001 - no eccodes sample: the GRIB fuzz test says s
 @pytest.mark.skipif(not GRIB, reason="eccodes sample regular_ll_pl_grib2 not available")
 @_settings(150)
 @given(data=st.one_of(_mutated(GRIB or b"GRIB"), st.binary(min_size=4, max_size=64).map(lambda b: b"GRIB" + b)))
+@example(data=GRIB[:28] + b"\x00" + GRIB[29:])  # found: the year's high byte zeroed (year 226)
+@example(data=GRIB[:148] + b"\x01" + GRIB[149:])  # found: values that eccodes cannot decode
 def test_fuzz_grib(grib_cache, data):
     _reads_or_refuses(_open, _file("fuzz.grib2", data))
 
