@@ -64,11 +64,11 @@ def check_surface_wind(wind: str) -> None:
     """Refuse the geostrophic wind at the surface: it comes from geopotential on pressure
     levels, and friction makes the 10-m wind far from geostrophic anyway."""
     if wind != "actual":
-        from parcelcast.errors import ParcelcastError
+        from parcelcast.errors import UsageError
 
-        raise ParcelcastError(f"the {wind} wind is not available at the surface level: it needs "
-                              "geopotential on pressure levels; the surface level uses the "
-                              "10-m wind (--wind actual)")
+        raise UsageError(f"the {wind} wind is not available at the surface level: it needs "
+                         "geopotential on pressure levels; the surface level uses the "
+                         "10-m wind (--wind actual)")
 
 
 def roles_at_level(roles, level) -> list[str]:
