@@ -83,6 +83,6 @@ def test_bad_config_exits_2_with_the_message(tmp_path, capsys):
     from parcelcast.cli import main
 
     path = _write(tmp_path, ISSUE_EXAMPLE.replace("lat = 50.0", "lat = 95.0"))
-    assert main(["brief", str(path), "--out", str(tmp_path / "out")]) == 2
+    assert main(["brief", str(path), "--out", str(tmp_path / "out")]) == 3  # unreadable input (errors.EXIT_STATUS), as for a case file
     assert "[station] lat" in capsys.readouterr().err
     assert not (tmp_path / "out").exists()
