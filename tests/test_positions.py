@@ -27,6 +27,7 @@ def _minimal_args(command: str) -> list[str]:
         "track": ["f.nc", "--level", "850", "--back", "6"],
         "split": ["f.nc", "--level", "850", "--start", "2026-01-01T00", "--end", "2026-01-01T12"],
         "profile": ["f.nc"],
+        "climate": ["f.nc", "--level", "850", "--window", "24"],
     }.get(command, ["f.nc"])
 
 
