@@ -24,8 +24,10 @@ import numpy as np
 #: the reason given for every value masked here (``--at`` answers, counts, JSON)
 BELOW_GROUND = "below the ground"
 #: how each check is described in outputs
-BY_SURFACE_PRESSURE = "level pressure above the surface pressure of the file"
-BY_OROGRAPHY = "geopotential of the level below the orography of the file"
+BY_SURFACE_PRESSURE = ("checked against the file's surface pressure (a level at a higher "
+                       "pressure than the surface is below the ground)")
+BY_OROGRAPHY = ("checked against the file's orography (a level whose geopotential is "
+                "below the ground's is below the ground)")
 NOT_CHECKED = ("cannot be checked: the file has neither surface pressure nor "
                "geopotential with orography")
 

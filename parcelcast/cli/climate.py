@@ -50,15 +50,18 @@ def run(args) -> int:
     rows = climate_split(args.files, *args.at, args.level, args.window, args.wind,
                          args.scheduler, dict(args.var), args.time_chunk)
     header = _header(args)
-    summary, windows = MonthlySummary(), []
+    summary, windows, missing, count = MonthlySummary(), [], {}, 0
     with contextlib.ExitStack() as stack:
         write = stack.enter_context(window_writer(args.out, header)) if args.out else None
-        for row in rows:
+        for count, row in enumerate(rows, 1):
             summary.add(row)
             if write is not None:
                 write(row)
+            doc = window_json(row)
+            for part, why in (doc.get("missing") or {}).items():
+                missing[(part, why)] = missing.get((part, why), 0) + 1
             if args.json:
-                windows.append(window_json(row))
+                windows.append(doc)
     if args.plot:
         from parcelcast.climate.plot import save_plot
 
@@ -69,7 +72,7 @@ def run(args) -> int:
     if args.json:
         print_json(result)
     else:
-        print_text(result)
+        print_text(result, missing, count)
     return 0
 
 
@@ -147,7 +150,8 @@ def _title(args) -> str:
     return f"Split at {h['lat']:g},{h['lon']:g}, {h['level']}, {args.window:g}-h windows"
 
 
-def print_text(result: dict) -> None:
+def print_text(result: dict, missing: dict, count: int) -> None:
+    """The monthly table; ``missing`` counts windows by (part, reason) out of ``count``."""
     def f(stat):
         return "   n/a" if stat["mean_K"] is None else f"{stat['mean_K']:+6.2f}"
 
@@ -159,5 +163,8 @@ def print_text(result: dict) -> None:
         lines.append(f"  {m['month']}  {m['windows']:7d}    {f(m['observed_change'])}    "
                      f"{f(m['advective'])}   {f(m['vertical'])}   {f(m['residual'])}  "
                      + ("n/a" if share is None else f"{share:.2f}"))
+    for (part, why), n in missing.items():
+        lines.append(f"  missing {part} in {n} of {count} windows: {why}")
+    lines += [f"  note: {note}" for note in result.get("notes", [])]
     lines.append(result["disclaimer"])
     print("\n".join(lines))

@@ -96,15 +96,17 @@ def _height_text(doc, key, name) -> str:
 
 
 def _text(doc) -> str:
+    from parcelcast.formatting import temperature_text
+
     f = _number
     parcels = doc["index_parcels"]
     lines = [f"Profile: {doc['source']}" + (f"  valid {doc['time']}" if doc.get("time") else "")]
     if doc.get("chosen_by"):
         lines.append(f"  {doc['chosen_by']}")
     lines.append(f"  LCL ({parcels['lcl_hPa'].replace('_', '-')} parcel) {f(doc['lcl_hPa'])} hPa, "
-                 f"{f(doc['lcl_temperature_K'], '{:.1f}')} K")
+                 f"{temperature_text(doc['lcl_temperature_K'])}")
     for kind in ("surface", "mixed_layer", "most_unstable"):
-        lines.append(f"  {kind:14s} CAPE {f(doc['cape_J_per_kg'][kind]):>6} J/kg  CIN "
+        lines.append(f"  {kind.replace('_', ' '):14s} CAPE {f(doc['cape_J_per_kg'][kind]):>6} J/kg  CIN "
                      f"{f(doc['cin_J_per_kg'][kind]):>6} J/kg  LFC {f(doc['lfc_hPa'][kind]):>5} hPa  "
                      f"EL {f(doc['el_hPa'][kind]):>5} hPa  lifted index "
                      f"{f(doc['lifted_index_by_parcel_K'][kind], '{:.1f}'):>5} K")
@@ -119,8 +121,8 @@ def _text(doc) -> str:
     lines.append("  " + _height_text(doc, "freezing_level", "freezing level"))
     lines.append("  " + _height_text(doc, "wet_bulb_zero", "wet-bulb zero"))
     g = doc["top_temperature_guidance"]
-    lines.append(f"  top-temperature guidance {f(g['temperature_K'] and g['temperature_K'] - 273.15, '{:.1f}')} "
-                 f"degC (mixing from {f(g['mixing_top_hPa'])} hPa)")
+    lines.append(f"  top-temperature guidance {temperature_text(g['temperature_K'])} "
+                 f"(mixing from {f(g['mixing_top_hPa'])} hPa)")
     if doc.get("humidity_rule"):
         lines.append(f"  humidity: {doc['humidity_rule']['meaning']} ({doc['humidity_rule']['chosen']})")
     if doc["layers"]:

@@ -175,16 +175,19 @@ def print_text(s: dict) -> None:
         lines.insert(1, f"  missing: {s['missing_reason']}")
     lines += [f"  {part}: {why}" for part, why in s.get("not_computed", {}).items()]
     lines += [f"  note: {note}" for note in s["notes"] if note.startswith("surface level")]
+    from parcelcast.formatting import temperature_text
+
     for item in s.get("guidance", [])[1:]:
         if "lead_h" in item:
-            up = "n/a" if item["upstream_K"] is None else f"{item['upstream_K']:.1f} K"
+            up = "n/a" if item["upstream_K"] is None else temperature_text(item["upstream_K"])
             diurnal = item["with_diurnal_course_K"]
             lines.append(f"  guidance +{item['lead_h']} h: advective extrapolation "
-                         f"{item['advective_extrapolation_K']:.1f} K, upstream {up}"
-                         + ("" if diurnal is None else f", with yesterday's diurnal course {diurnal:.1f} K"))
+                         f"{temperature_text(item['advective_extrapolation_K'])}, upstream {up}"
+                         + ("" if diurnal is None
+                            else f", with yesterday's diurnal course {temperature_text(diurnal)}"))
             lines += [f"    warning: {w}" for w in item["warnings"]]
         elif item.get("top_temperature"):
             lines.append(f"  top temperature (mixing down, common practice): "
-                         f"{item['top_temperature']['temperature_K']:.1f} K")
+                         f"{temperature_text(item['top_temperature']['temperature_K'])}")
     lines.append(s["disclaimer"])
     print("\n".join(lines))
