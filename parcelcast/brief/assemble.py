@@ -233,9 +233,11 @@ def split_entry(ds, config: BriefConfig, valid_time, trajectories: dict) -> dict
     if reason is not None:
         entry["reason"] = reason
         return entry
+    # the brief's own back trajectories are the split's (same point, level, window, wind)
+    paths = trajectories.get("_paths")
     try:
         result = trend_split(ds, config.lat, config.lon, level, start, end, config.wind,
-                             members=config.members)
+                             members=config.members, paths=paths)
     except ParcelcastError as exc:
         entry["reason"] = str(exc)
         return entry

@@ -48,47 +48,69 @@ def write_brief(brief: dict, out_dir) -> dict:
 
 # --------------------------------------------------------------------------- figures
 def draw_figures(brief: dict, folder: Path) -> list[dict]:
-    """Advection maps (one per level), the trajectory map and the profile diagram."""
-    from parcelcast.render.maps import advection_map
+    """Advection maps (one per level), the trajectory map and the profile diagram, drawn
+    at the same time in worker processes where the machine allows it
+    (:mod:`parcelcast.render.parallel`)."""
+    from parcelcast.render.parallel import draw_in_parallel, preload
 
     station = (brief["station"]["name"], brief["station"]["lat"], brief["station"]["lon"])
-    area = brief["area"]
-    figures = []
+    jobs, figures = [], []
+    traj = brief["trajectories"]
+    if traj["available"]:  # the slowest figure first
+        name = "trajectories.png"
+        jobs.append((_trajectory_figure, (
+            traj["_paths"], folder / name, station,
+            f"{traj['hours']:g}-h back trajectories to {station[0]} at {traj['level_hPa']:g} hPa "
+            f"({brief['wind']} wind)", _sources(brief))))
+        figures.append({"file": name, "kind": "trajectory_map",
+                        "caption": f"Back trajectories arriving at "
+                        f"{formatting.time_text(traj['arrival_time'])}: central path bold, members "
+                        f"thin, marks every 6 h, colour = pressure."})
     for level in brief["levels"]:
         if not level.get("available"):
             continue
         name = f"advection-{level['level_hPa']:g}hPa.png"
-        drawn = advection_map(level["_fields"], folder / name, station=station, area=area)
-        figures.append({"file": name, "kind": "advection_map", "area": drawn["area"],
-                        "coastlines": drawn["coastlines"], "level_hPa": level["level_hPa"],
+        jobs.append((_advection_figure, (level["_fields"], folder / name, station, brief["area"])))
+        figures.append({"file": name, "kind": "advection_map", "level_hPa": level["level_hPa"],
                         "caption": f"Temperature advection at {level['level_hPa']:g} hPa, valid "
                         f"{formatting.time_text(brief['valid_time'])}: red warm, blue cold (K/h); "
                         "isotherms in \u00b0C; barbs in kt."})
-    traj = brief["trajectories"]
-    if traj["available"]:
-        from parcelcast.render.trajectory_maps import trajectory_map
-
-        name = "trajectories.png"
-        drawn = trajectory_map(
-            traj["_paths"], folder / name, station=station,
-            title=f"{traj['hours']:g}-h back trajectories to {station[0]} at {traj['level_hPa']:g} hPa "
-            f"({brief['wind']} wind)", source=_sources(brief))
-        figures.append({"file": name, "kind": "trajectory_map", "area": drawn["area"],
-                        "coastlines": drawn["coastlines"],
-                        "caption": f"Back trajectories arriving at "
-                        f"{formatting.time_text(traj['arrival_time'])}: central path bold, members "
-                        f"thin, marks every 6 h, colour = pressure."})
     prof = brief["profile"]
     if prof["available"]:
-        from parcelcast.render.skewt import save_profile_diagram
-
         name = "profile.png"
-        save_profile_diagram(prof["_profile"], prof["_result"], folder / name,
-                             gridded=prof["gridded_layers"])
-        figures.append({"file": name, "kind": "profile_diagram", "area": None, "coastlines": None,
+        jobs.append((_profile_figure, (prof["_profile"], prof["_result"], folder / name,
+                                       prof["gridded_layers"])))
+        figures.append({"file": name, "kind": "profile_diagram",
                         "caption": "Profile at the station (skew-T log-p): temperature, dew point, "
                         "lifted parcel, winds in kt and the advection profile."})
-    return figures
+    preload()
+    for figure, drawn in zip(figures, draw_in_parallel(jobs)):
+        figure.update(drawn)
+    order = {"advection_map": 0, "trajectory_map": 1, "profile_diagram": 2}  # as on the page
+    figures.sort(key=lambda f: order[f["kind"]])
+    return [{key: f[key] for key in ("file", "kind", "area", "coastlines", "level_hPa", "caption")
+             if key in f} for f in figures]
+
+
+def _advection_figure(fields, path, station, area) -> dict:
+    from parcelcast.render.maps import advection_map
+
+    drawn = advection_map(fields, path, station=station, area=area)
+    return {"area": drawn["area"], "coastlines": drawn["coastlines"]}
+
+
+def _trajectory_figure(paths, path, station, title, source) -> dict:
+    from parcelcast.render.trajectory_maps import trajectory_map
+
+    drawn = trajectory_map(paths, path, station=station, title=title, source=source)
+    return {"area": drawn["area"], "coastlines": drawn["coastlines"]}
+
+
+def _profile_figure(profile, result, path, gridded) -> dict:
+    from parcelcast.render.skewt import save_profile_diagram
+
+    save_profile_diagram(profile, result, path, gridded=gridded)
+    return {"area": None, "coastlines": None}
 
 
 def _sources(brief: dict) -> str:

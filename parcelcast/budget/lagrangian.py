@@ -17,7 +17,7 @@ from parcelcast.budget.consistency import footing
 
 def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
                      observed_change, wind: str = "actual", members: int = 5,
-                     scheme: str = "petterssen") -> dict:
+                     scheme: str = "petterssen", paths=None) -> dict:
     """The Lagrangian split from isobaric back trajectories arriving at ``end``.
 
     Parameters
@@ -27,6 +27,9 @@ def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
         used for every member.
     members : int
         Trajectories in the cloud of starts of each analysis member.
+    paths : xarray.Dataset, optional
+        The trajectories of this very call (same point, level, window, wind, members and
+        scheme) when the caller already has them; computed here when None.
 
     Returns
     -------
@@ -48,9 +51,10 @@ def lagrangian_split(ds, lat: float, lon: float, level_hpa: float, start, end,
     ds, pressure = at_surface(ds, level_hpa, wind), level_hpa
     if is_surface(level_hpa):  # the surface: one level, the 10-m wind; the pressure of a
         pressure = 1000.0      # single-level field is not used (it only labels the path)
-    paths = compute_trajectories(ds, lat, lon, Q_(pressure, "hPa"), Q_(-float(hours), "h"),
-                                 start_time=np.datetime64(end, "ns"), mode="isobaric",
-                                 scheme=scheme, wind=wind, members=members)
+    if paths is None:
+        paths = compute_trajectories(ds, lat, lon, Q_(pressure, "hPa"), Q_(-float(hours), "h"),
+                                     start_time=np.datetime64(end, "ns"), mode="isobaric",
+                                     scheme=scheme, wind=wind, members=members)
     last = paths["row_size"].values - 1
     index = np.arange(paths.sizes["trajectory"])
     arrival_t = paths["temperature"].values[:, 0]

@@ -11,7 +11,8 @@ from parcelcast.budget.windows import bounding_times
 
 
 def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: str = "actual",
-                radius_km: float | None = None, station=None, members: int = 5) -> dict:
+                radius_km: float | None = None, station=None, members: int = 5,
+                paths=None) -> dict:
     """The Eulerian and the Lagrangian split of one window, and their ``consistency``.
 
     The Lagrangian view follows each analysis member's unperturbed trajectory from the point,
@@ -19,10 +20,13 @@ def trend_split(ds, lat: float, lon: float, level_hpa: float, start, end, wind: 
     an area mean, which are not what the parcel's temperature measures).  Both views are
     then member means: ``consistency`` (see :mod:`parcelcast.budget.consistency`) compares
     like with like.  ``advective_difference_K`` is its ``eulerian_minus_lagrangian_K``.
+    ``paths``: back trajectories the caller already computed for this window (see
+    :func:`~parcelcast.budget.lagrangian.lagrangian_split`).
     """
     euler = eulerian_split(ds, lat, lon, level_hpa, start, end, wind, radius_km, station)
     observed = euler.get("point_observed_change_members_K", euler["point_observed_change_K"])
-    lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members)
+    lagr = lagrangian_split(ds, lat, lon, level_hpa, start, end, observed, wind, members,
+                            paths=paths)
     lagr["observed_change_K"] = euler["point_observed_change_K"]
     consistency = assess(euler, lagr, _spacing_h(ds, start, end))
     return {"eulerian": euler, "lagrangian": lagr, "consistency": consistency,

@@ -41,10 +41,29 @@ def pyplot():
     return plt
 
 
-def save_figure(fig, path, dpi: int = 110) -> Path:
-    """Write ``fig`` to ``path`` (PNG) whole or not at all, and close it."""
+def save_figure(fig, path, dpi: int = 110, pad_inches: float = 0.1) -> Path:
+    """Write ``fig`` to ``path`` (PNG) whole or not at all, cropped to what is drawn (as
+    ``bbox_inches="tight"``), and close it.
+
+    The figure is drawn once and the picture cut out of it; only when something lies
+    outside the figure is it drawn again by matplotlib's own tight saving (which always
+    draws twice: a cartopy map costs a quarter of a second a draw).
+    """
+    from PIL import Image
+
+    fig.set_dpi(dpi)
+    fig.canvas.draw()
+    box = fig.get_tightbbox(fig.canvas.get_renderer()).padded(pad_inches)
+    width, height = fig.get_size_inches()
     with atomic_path(path) as tmp:
-        fig.savefig(tmp, format="png", dpi=dpi, bbox_inches="tight")
+        if box.x0 < 0 or box.y0 < 0 or box.x1 > width or box.y1 > height:
+            fig.savefig(tmp, format="png", dpi=dpi, bbox_inches="tight", pad_inches=pad_inches)
+        else:
+            pixels = np.asarray(fig.canvas.buffer_rgba())
+            rows = pixels.shape[0]
+            top, bottom = int(rows - round(box.y1 * dpi)), int(rows - round(box.y0 * dpi))
+            left, right = int(round(box.x0 * dpi)), int(round(box.x1 * dpi))
+            Image.fromarray(pixels[top:bottom, left:right]).save(tmp, format="png")
     pyplot().close(fig)
     return Path(path)
 
