@@ -12,8 +12,8 @@ Two formulations:
 from __future__ import annotations
 
 import numpy as np
-from scipy.special import lambertw
 
+from parcelcast.thermo.lambert import lambert_w_lower
 from parcelcast.thermo.constants import (
     G0,
     KAPPA,
@@ -94,7 +94,7 @@ def lcl_romps(pressure, temperature, relative_humidity=None, dewpoint=None):
     b = -e0 / (ROMPS_RVAP * t)
     c = rh * np.exp(b)  # = pv/pvstar(T) * exp(-E0/(Rv T))
     with np.errstate(divide="ignore", invalid="ignore"):
-        w = lambertw(b / a * c ** (1 / a), -1).real
+        w = lambert_w_lower(b / a * c ** (1 / a))
         t_lcl = t * b / (a * w)
     t_lcl = np.where(rh >= 1.0, t, t_lcl)
     z = cpm * (t - t_lcl) / G0
