@@ -146,14 +146,29 @@ def draw_parcel(profile, parcel, ax=None, label="surface parcel"):
     lower = ok & ((ph >= lfc) if np.isfinite(lfc) else np.zeros_like(ok))  # no LFC: no CIN to show
     neg = ax.fill_betweenx(ph, xe, xp, where=lower & (tp < te), interpolate=True,
                            color=COLOURS["negative"], alpha=0.45, lw=0, label="negative area", zorder=2)
+    levels = [(name, float(value) / 100.0) for name, value in
+              (("LCL", parcel.lcl_pressure), ("LFC", parcel.lfc_pressure), ("EL", parcel.el_pressure))
+              if np.isfinite(value)]
     marks = []
-    for name, value in (("LCL", parcel.lcl_pressure), ("LFC", parcel.lfc_pressure), ("EL", parcel.el_pressure)):
-        if np.isfinite(value):
-            pv = float(value) / 100.0
-            xv = float(np.interp(-np.log(pv), -np.log(ph[ok]), xp[ok])) if ok.sum() > 1 else np.nan
-            marks += ax.plot([xv + 1.0, xv + 4.0], [pv, pv], color=COLOURS["parcel"], lw=1.0, zorder=6)
-            marks.append(ax.text(xv + 4.5, pv, name, fontsize=7, va="center", color=COLOURS["parcel"]))
+    for names, pv in _merge_close_levels(levels):
+        xv = float(np.interp(-np.log(pv), -np.log(ph[ok]), xp[ok])) if ok.sum() > 1 else np.nan
+        marks += ax.plot([xv + 1.0, xv + 4.0], [pv, pv], color=COLOURS["parcel"], lw=1.0, zorder=6)
+        marks.append(ax.text(xv + 4.5, pv, "/".join(names), fontsize=7, va="center",
+                             color=COLOURS["parcel"]))
     return {"parcel": line, "positive": pos, "negative": neg, "levels": marks}
+
+
+def _merge_close_levels(levels, closer_than=0.03):
+    """``[(name, hPa), ...]`` grouped where neighbours lie within ``closer_than`` in ln p
+    (about 25 hPa near 850 hPa), so that labels such as LCL and LFC never print over each
+    other: ``[(["LCL", "LFC"], 905.0), (["EL"], 839.0)]``."""
+    groups: list = []
+    for name, pv in sorted(levels, key=lambda item: -item[1]):
+        if groups and abs(np.log(groups[-1][1] / pv)) < closer_than:
+            groups[-1][0].append(name)
+        else:
+            groups.append(([name], pv))
+    return groups
 
 
 def draw_winds(profile, ax=None, max_barbs=22):
@@ -288,7 +303,7 @@ def profile_diagram(profile, result, fig=None, parcel="surface", gridded=None):
     when = f", valid {formatting.time_text(profile.time)}" if profile.time is not None else ""
     where = formatting.position_text(profile.latitude, profile.longitude) if profile.latitude is not None else ""
     fig.suptitle(f"Profile {where}{when}", fontsize=10, x=0.08, ha="left")
-    fig.text(0.08, 0.915, f"{_short_source(profile.source)}; {parcel.replace('_', ' ')} parcel: "
+    fig.text(0.08, 0.945, f"{_short_source(profile.source)}; {parcel.replace('_', ' ')} parcel: "
              f"CAPE {cape:.0f} J/kg, CIN {cin:.0f} J/kg", fontsize=8, ha="left", color="#333333")
     fig.text(0.08, 0.01, "Guidance, not an official forecast: defer to the national weather service.",
              fontsize=6.5, color="#555555")
