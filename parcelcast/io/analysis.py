@@ -18,6 +18,7 @@ import xarray as xr
 
 from parcelcast.constants import STANDARD_GRAVITY
 from parcelcast.errors import (
+    GridError,
     ImplausibleValuesError,
     IncompleteInputError,
     InputFileError,
@@ -208,6 +209,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
                 raw = xr.open_dataset(path, engine="netcdf4", chunks=chunks, decode_timedelta=True)
         except Exception as exc:
             raise InputFileError(path, f"NetCDF could not be read: {exc}") from None
+        _refuse_non_text_units(raw, path)
         std = coordinates.standardise(raw, path)
         upper = [std]
         single = [std]
@@ -231,16 +233,51 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
         raise VariableNotFoundError(", ".join(wanted), str(path), raw_names,
                                     hint="no known quantity was recognised")
     ds = xr.Dataset(found)
+    _check_horizontal(ds, raw_vars, path)
     ds = coordinates.normalise(ds, path)
     earth_radius.declare(ds, earth)
     if "x" in ds.dims:
         ds = _winds_to_earth(ds, raw_vars, grid_relative, path)
     for name in ds.data_vars:
+        _refuse_infinite(ds[name], name, path)
         _check_plausible(ds[name], name, path)
     ds.attrs["raw_variables"] = ",".join(raw_names)
     if damaged:
         ds.attrs["damaged"] = damaged
     return ds
+
+
+def _refuse_non_text_units(raw: xr.Dataset, path: Path) -> None:
+    """CF ``units`` are text; a number or an array there cannot be read as units."""
+    for name, var in raw.variables.items():
+        units = var.attrs.get("units")
+        if units is not None and not isinstance(units, str):
+            raise UnitsError(f"variable '{name}'", repr(units)[:40],
+                             "a CF units text attribute (such as 'K' or 'hPa')", str(path))
+
+
+def _check_horizontal(ds: xr.Dataset, raw_vars: dict, path: Path) -> None:
+    """Every quantity lies on the file's horizontal grid: dimensions ``lat, lon`` (1-D
+    coordinates) or ``y, x`` (2-D ones); ``x``/``y`` are reserved for map-projected grids."""
+    projected = "lat" in ds.coords and ds["lat"].ndim == 2
+    horizontal = {"y", "x"} if projected else {"lat", "lon"}
+    for name, var in ds.data_vars.items():
+        stray = set() if projected else {"x", "y"} & set(var.dims)
+        if not horizontal <= set(var.dims) or stray:
+            raise GridError(
+                f"{path}: variable '{raw_vars[name].name}' ({name}) has dimensions "
+                f"({', '.join(map(str, raw_vars[name].dims))}); expected it on the horizontal "
+                f"grid of the file, dimensions {' and '.join(sorted(horizontal))}"
+                + (" (x and y belong to map-projected grids)" if stray else ""))
+
+
+def _refuse_infinite(da: xr.DataArray, name: str, path: Path) -> None:
+    """Infinity is no value of a quantity and no missing-value marker (missing is NaN)."""
+    count = int(np.isinf(da).sum())
+    if count:
+        raise ImplausibleValuesError(
+            name, f"{path} ({da.attrs.get('source', name)})",
+            f"{count} infinite value(s); a missing value should be NaN or the _FillValue")
 
 
 def _winds_to_earth(ds: xr.Dataset, raw_vars: dict, grib_grid_relative, path: Path) -> xr.Dataset:

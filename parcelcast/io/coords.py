@@ -143,12 +143,15 @@ def _standardise_level(ds: xr.Dataset, path: Path) -> xr.Dataset:
                          f"{path} coordinate '{name}'")
     values = np.atleast_1d(convert(coord.values, units, "pressure", "pressure level",
                                    f"{path} coordinate '{name}'"))
-    if values.max() > 110_000.0 or values.min() <= 0.0:
+    if not np.isfinite(values).all() or values.max() > 110_000.0 or values.min() <= 0.0:
         raise ImplausibleValuesError(
             "pressure level", f"{path} coordinate '{name}'",
             f"levels {values.min():g} .. {values.max():g} Pa after conversion from '{units}'; "
             "expected 1 .. 110000 Pa (hPa and Pa confused?)",
         )
+    if len(np.unique(values)) != values.size:
+        raise GridError(f"{path}: coordinate '{name}' repeats a pressure level: "
+                        f"{', '.join(f'{v / 100:g}' for v in values)} hPa")
     attrs = {"units": "Pa", "standard_name": "air_pressure", "long_name": "pressure level",
              "positive": "down", "axis": "Z"}
     if coord.ndim == 0:
@@ -185,6 +188,8 @@ def _standardise_time(ds: xr.Dataset, path: Path) -> xr.Dataset:
     name = "time" if "time" in ds.coords else None
     if name is None:
         for cname, coord in ds.coords.items():
+            if cname in ("lat", "lon", "level", "x", "y"):
+                continue  # a position is never the time, even with time-like units
             if coord.attrs.get("standard_name") == "time" or np.issubdtype(coord.dtype, np.datetime64):
                 name = cname
                 break
@@ -195,6 +200,10 @@ def _standardise_time(ds: xr.Dataset, path: Path) -> xr.Dataset:
     if not np.issubdtype(ds["time"].dtype, np.datetime64):
         raise UnitsError("time coordinate", ds["time"].attrs.get("units"),
                          "a CF time ('hours since ...') that decodes to dates", str(path))
+    missing = int(np.isnat(ds["time"].values).sum())
+    if missing:
+        raise ImplausibleValuesError("time coordinate", str(path),
+                                     f"{missing} time(s) missing (NaT); every field needs its time")
     if ds["time"].ndim == 0:
         ds = ds.expand_dims("time")
     return ds
@@ -247,6 +256,11 @@ def normalise(ds: xr.Dataset, path: Path) -> xr.Dataset:
 
 def _normalise_lat_lon(ds: xr.Dataset, path: Path) -> xr.Dataset:
     lat = ds["lat"].values.astype(np.float64)
+    for name in ("lat", "lon"):
+        values = ds[name].values
+        if not np.issubdtype(values.dtype, np.number) or not np.isfinite(values).all():
+            raise GridError(f"{path}: the {name} coordinate must hold finite numbers (degrees); "
+                            f"found {values.dtype} values {str(values)[:60]}")
     if np.any(np.abs(lat) > 90.0 + 1e-6):
         raise ImplausibleValuesError("latitude", str(path), f"values {lat.min()} .. {lat.max()}")
     if len(np.unique(lat)) != len(lat):
@@ -286,6 +300,8 @@ def longitude_order(lon: np.ndarray) -> tuple[np.ndarray, np.ndarray, bool]:
 
 def _normalise_longitude(ds: xr.Dataset, path: Path) -> xr.Dataset:
     lon = ds["lon"].values.astype(np.float64)
+    if len(np.unique(lon)) != len(lon):
+        raise GridError(f"{path}: repeated longitudes")
     wrapped = np.mod(lon, 360.0)
     _, first = np.unique(np.round(wrapped, 9), return_index=True)
     if len(first) != len(lon):
