@@ -71,6 +71,8 @@ def read_case(path) -> Case:
                 isinstance(item, str) for item in case["analyses"]):
             raise InputFileError(path, "[case] analyses must be a non-empty list of file names "
                                  'or patterns, such as analyses = ["a.grb"]')
+        if not isinstance(case.get("data_dir", "."), str):
+            raise InputFileError(path, "[case] data_dir must be a folder name in quotes")
         data_dir = os.environ.get("PARCELCAST_DATA") or str(
             (path.parent / case.get("data_dir", ".")).resolve())
         analyses = []
@@ -81,7 +83,10 @@ def read_case(path) -> Case:
         start = parse_utc(window["start"], f"{path}: [window] start")
         end = parse_utc(window["end"], f"{path}: [window] end")
         wind = str(case.get("wind", "actual"))
-        check_wind(wind)
+        try:
+            check_wind(wind)
+        except ParcelcastError as exc:
+            raise InputFileError(path, f"[case] {exc}") from None
         return Case(title=str(case.get("title", path.stem)), analyses=analyses,
                     station_name=str(station.get("name", "station")),
                     lat=_number(station, "lat", path, "station", -90.0, 90.0),
