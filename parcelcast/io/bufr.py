@@ -201,8 +201,11 @@ def _decode_subset(ec, h, prefix, source, message, subset) -> Ascent:
     if any(x is None for x in parts):
         raise InputFileError(source, f"{where}: the launch time (year, month, day, hour, minute) is incomplete")
     second = ints("second") or 0
-    when = np.datetime64(f"{parts[0]:04d}-{parts[1]:02d}-{parts[2]:02d}T{parts[3]:02d}:{parts[4]:02d}", "s") \
-        + np.timedelta64(second, "s")
+    stamp = f"{parts[0]:04d}-{parts[1]:02d}-{parts[2]:02d}T{parts[3]:02d}:{parts[4]:02d}"
+    try:
+        when = np.datetime64(stamp, "s") + np.timedelta64(second, "s")
+    except ValueError:
+        raise InputFileError(source, f"{where}: the launch time {stamp} is not a date") from None
     lat = _scalar(ec, h, prefix, "latitude", "angle", source)
     lon = _scalar(ec, h, prefix, "longitude", "angle", source)
     if not (np.isfinite(lat) and np.isfinite(lon)):
