@@ -44,8 +44,10 @@ def length_fields(message: bytes) -> list[int]:
     flag_byte = 7 if edition == 3 else 9  # section 1 octet 8 (ed. 3) / 10 (ed. 4): section 2 present
     has_section2 = bool(message[8 + flag_byte] & 0x80)
     for _ in range(4 if has_section2 else 3):
+        if offset + 3 > len(message):
+            break  # an earlier edit broke the chain
         fields.append(offset)
-        offset += int.from_bytes(message[offset:offset + 3], "big")
+        offset += max(1, int.from_bytes(message[offset:offset + 3], "big"))
     return fields
 
 

@@ -61,18 +61,25 @@ def valid_messages(edition: int) -> list[bytes]:
 
 
 def section_length_fields(message: bytes) -> list[tuple[int, int]]:
-    """(offset, size in bytes) of every length field of one valid message."""
+    """(offset, size in bytes) of the length fields of a message, as far as they chain (an
+    earlier edit may have broken the chain: the walk stops there)."""
     edition = message[7]
     if edition == 2:
         fields, offset = [(8, 8)], 16
-        while message[offset:offset + 4] != b"7777":
+        while offset + 5 <= len(message) and message[offset:offset + 4] != b"7777":
             fields.append((offset, 4))
-            offset += int.from_bytes(message[offset:offset + 4], "big")
+            step = int.from_bytes(message[offset:offset + 4], "big")
+            if step < 5:
+                break
+            offset += step
         return fields
     fields, offset = [(4, 3)], 8
-    while message[offset:offset + 4] != b"7777":
+    while offset + 4 <= len(message) and message[offset:offset + 4] != b"7777":
         fields.append((offset, 3))
-        offset += int.from_bytes(message[offset:offset + 3], "big")
+        step = int.from_bytes(message[offset:offset + 3], "big")
+        if step < 4:
+            break
+        offset += step
     return fields
 
 
