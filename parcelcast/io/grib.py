@@ -62,6 +62,7 @@ class GribScan:
     grid: dict = field(default_factory=dict)  # projection keys of the first projected message
     wind_flags: set = field(default_factory=set)  # u/v relative to the grid? one per message
     earth: dict = field(default_factory=dict)  # shape of the Earth keys of the first message
+    intact: list = field(default_factory=list)  # [offset, length] of each decoded message
 
     @property
     def winds_grid_relative(self) -> bool | None:
@@ -271,6 +272,7 @@ def scan_messages(path: Path) -> GribScan:
                             finally:
                                 eccodes.codes_release(gid)
                             scan.decoded += 1
+                        scan.intact.append([offset, length])
                         offset = data.find(b"GRIB", offset + length)
                         continue
                     except Exception as exc:  # eccodes raises its own error classes
@@ -367,7 +369,8 @@ def open_grib(path: Path, roles=None, overrides=None, allow_damaged: bool = Fals
     used, not the number of field groups in the file.
 
     A damaged file is refused before cfgrib reads it (``IncompleteInputError``) unless
-    ``allow_damaged``: eccodes can abort the whole process on some damaged messages.
+    ``allow_damaged``: eccodes can abort the whole process on some damaged messages, so an
+    allowed damaged file reaches cfgrib as a private copy of its intact messages only.
     """
     _load_proj_first()
     import cfgrib
@@ -383,7 +386,9 @@ def open_grib(path: Path, roles=None, overrides=None, allow_damaged: bool = Fals
             f"field(s) decoded, {scan.failed} message(s) could not be ({scan.problem}); readable: "
             f"{scan.summary() or 'nothing'}. Fields and levels beyond those listed are missing; "
             "refusing to compute from incomplete input.")
-    backend = {"indexpath": _index_path(path)}
+    # allowed damaged file: cfgrib can crash on a damaged message, so it sees only the intact ones
+    source = _intact_copy(path, scan) if scan.damaged else path
+    backend = {"indexpath": _index_path(source)}
     parts = {}
     for part, filter_by_keys in grib_filters(scan, roles, overrides).items():
         LOGGER.debug(f"{path}: opening the {part} fields {filter_by_keys}")
@@ -393,11 +398,11 @@ def open_grib(path: Path, roles=None, overrides=None, allow_damaged: bool = Fals
                 # indexpath must travel in backend_kwargs: cfgrib's first pass over the file
                 # reads only those, and otherwise writes its index next to the input.
                 parts[part] = cfgrib.open_datasets(
-                    str(path), backend_kwargs={**backend, "filter_by_keys": filter_by_keys},
+                    str(source), backend_kwargs={**backend, "filter_by_keys": filter_by_keys},
                     cache_geo_coords=True)
         except Exception as exc:
             raise InputFileError(path, f"cfgrib could not open the file: {exc}") from None
-    for written in Path(backend["indexpath"]).parent.glob(f"{glob.escape(_file_key(path))}.*.idx"):
+    for written in Path(backend["indexpath"]).parent.glob(f"{glob.escape(_file_key(source))}.*.idx"):
         make_private(written)  # cfgrib writes with the umask's permissions
     for folder in ("grib-index", "grib-scan"):
         prune(cache_folder(folder))
@@ -405,6 +410,19 @@ def open_grib(path: Path, roles=None, overrides=None, allow_damaged: bool = Fals
                     if m["typeOfLevel"] in _LEVEL_TYPES_UPPER + _LEVEL_TYPES_SINGLE})
     return GribGroups(upper=parts.get("upper", []), single=parts.get("single", []), scan=scan,
                       names=names)
+
+
+def _intact_copy(path: Path, scan: GribScan) -> Path:
+    """The decoded messages of a damaged file, alone in a private file of our cache (the
+    user's file is left as it is; cfgrib reads the copy lazily, so it stays in the cache)."""
+    copy = cache_folder("grib-index") / f"{_file_key(path)}.intact.grb"
+    with open(path, "rb") as handle:
+        data = handle.read()
+    temporary = copy.with_name(copy.name + ".part")
+    temporary.write_bytes(b"".join(data[offset:offset + length] for offset, length in scan.intact))
+    make_private(temporary)
+    temporary.replace(copy)
+    return copy
 
 
 def grib_filters(scan: GribScan, roles=None, overrides=None) -> dict[str, dict]:
