@@ -183,6 +183,7 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
     ground_fields = [n for n in ("surface_pressure", "orography", "geopotential")
                      if n in ds.data_vars and n not in needed]  # for parcelcast.ground
     sliced = select_level(select_time(ds[list(needed) + ground_fields], time), level_hpa)
+    _check_same_dims(sliced, needed)
     if wind == "actual":
         u, v = sliced["u"], sliced["v"]
     else:
@@ -200,6 +201,18 @@ def advection_on_level(ds, level_hpa: float, time=None, wind: str = "actual"):
     out.attrs["missing_points"] = int(out["temperature_advection"].isnull().sum())
     out.attrs.update(_missing_attrs(out, sliced, needed, wind))
     return out
+
+
+def _check_same_dims(sliced, names) -> None:
+    """The fields combined on the level must share their dimensions (a wind with a dimension
+    the temperature lacks, such as a second height, has no one value to advect with)."""
+    from parcelcast.errors import GridError
+
+    dims = {name: sliced[name].dims for name in names}
+    if len({frozenset(d) for d in dims.values()}) > 1:
+        found = "; ".join(f"{name} ({', '.join(d)})" for name, d in dims.items())
+        raise GridError(f"{sliced.attrs.get('source_files', 'input')}: the fields of the "
+                        f"advection do not share their dimensions: {found}")
 
 
 def _mask_below_ground(out, sliced):

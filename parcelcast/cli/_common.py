@@ -168,6 +168,20 @@ def iso_utc(value) -> str:
     return pd.Timestamp(value).strftime("%Y-%m-%dT%H:%M:%SZ")
 
 
+def require_valid_time(ds, why: str) -> None:
+    """Refuse an analysis without a valid time (``MissingCoordinateError``, exit status
+    "missing quantity"); ``why`` says what the command needs the time for."""
+    if "time" in ds.coords:
+        return
+    from parcelcast.errors import MissingCoordinateError
+
+    extra = [d for d in ds.dims if d not in ("level", "lat", "lon", "y", "x", "member")]
+    if extra:
+        why += (f"; '{extra[0]}' is not a valid time (a climatology by {extra[0]} cannot be "
+                "followed in time: pick one and give it a time, or use analyses)")
+    raise MissingCoordinateError("time", ds.attrs.get("source_files", "input"), ds.dims, why)
+
+
 def json_number(value, digits: int = 6):
     """A float for JSON: rounded, with NaN/inf as null (missing stays missing)."""
     if value is None:

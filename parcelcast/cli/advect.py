@@ -13,6 +13,7 @@ from parcelcast.cli._common import (
     lat_lon,
     pressure_level_or_surface,
     print_json,
+    require_valid_time,
     utc_time,
 )
 
@@ -51,6 +52,7 @@ def run(args) -> int:
     roles += ("surface_pressure", "orography")  # to mask levels below the ground
     ds = open_analysis(args.files, dict(args.var), roles=roles_at_level(roles, args.level),
                        levels=None if is_surface(args.level) else args.level * 100.0)  # that level only (Pa)
+    require_valid_time(ds, "the advection is reported at the valid time of an analysis")
     fields = advection_on_level(ds, args.level, args.time, args.wind)
     fields.attrs["level"] = args.level
     if args.at is not None:

@@ -7,7 +7,8 @@ import math
 import sys
 
 from parcelcast.cli._area import add_area_argument
-from parcelcast.cli._common import add_input_arguments, bounded_number, lat_lon, print_json, utc_time
+from parcelcast.cli._common import (add_input_arguments, bounded_number, lat_lon, print_json,
+                                    require_valid_time, utc_time)
 
 
 #: longest trajectory beyond the analyses' span (all of it for a single, steady analysis):
@@ -110,15 +111,7 @@ def run(args) -> int:
         output_format(args.out)  # an unknown suffix is refused before any computing
 
     ds = open_analysis(args.files, dict(args.var), roles=_roles(args))
-    if "time" not in ds.coords:
-        from parcelcast.errors import MissingCoordinateError
-
-        extra = [d for d in ds.dims if d not in ("level", "lat", "lon", "y", "x", "member")]
-        why = "trajectories follow the air through analyses at valid times"
-        if extra:
-            why += (f"; '{extra[0]}' is not a valid time (a climatology by {extra[0]} cannot be "
-                    "followed in time: pick one and give it a time, or use analyses)")
-        raise MissingCoordinateError("time", ds.attrs.get("source_files", "input"), ds.dims, why)
+    require_valid_time(ds, "trajectories follow the air through analyses at valid times")
     hours = -args.back if args.back is not None else args.ahead
     if ds.sizes.get("time", 1) == 1:
         note("track: one analysis time only; the flow is treated as steady.")

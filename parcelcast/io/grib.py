@@ -97,10 +97,14 @@ _PROJECTION_KEYS = {
 
 def _check_grid_size(gid) -> None:
     """A regular grid whose Ni x Nj differs from its number of points is damaged (eccodes
-    would crash computing its coordinates, found by fuzzing: tests/properties)."""
+    would crash computing its coordinates), and so is a message stating more values than its
+    grid has points (decoding would ask for gigabytes); both found by fuzzing (tests/fuzz)."""
     import eccodes
 
     points = eccodes.codes_get(gid, "numberOfDataPoints")
+    values = eccodes.codes_get(gid, "numberOfValues")
+    if values > points:
+        raise ValueError(f"{values} values stated for a grid of {points} points")
     if eccodes.codes_is_defined(gid, "Ni") and eccodes.codes_is_defined(gid, "Nj"):
         ni, nj = eccodes.codes_get(gid, "Ni"), eccodes.codes_get(gid, "Nj")
         if ni > 0 and nj > 0 and ni * nj != points:

@@ -6,7 +6,8 @@ PROVENANCE.md there; read, never modified).
 Damage: bytes overwritten, a section's 3-byte length set to another number (sections found
 as WMO FM 94 BUFR editions 3/4 lay them out: section 0 of 8 bytes with the total length in
 bytes 5-7, then sections 1-5 each starting with a 3-byte length; section 2 is optional,
-flagged in section 1), files cut short, messages dropped or repeated.  The reader must
+flagged in section 1), files cut short, messages dropped or repeated; also a ``BUFR`` marker followed by random
+bytes.  The reader must
 return ascents with float64 SI arrays, finite positions and times, and profiles that pass
 ``fuzz_contract.check_profile``, or raise parcelcast's own error.
 """
@@ -103,7 +104,7 @@ _COUNTER = iter(range(10**9))
 @fuzz_settings(300)
 @given(data=st.data())
 def test_bufr_damaged(scratch, data):
-    raw = data.draw(damage(valid_files()))
+    raw = data.draw(damage(valid_files()) | st.binary(max_size=64).map(lambda b: b"BUFR" + b))
     path = scratch / f"ascents-{next(_COUNTER)}.bufr"
     path.write_bytes(raw)
     ascents, _ = outcome("BUFR", read_ascents, path, names=[path])

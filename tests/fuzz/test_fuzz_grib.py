@@ -7,7 +7,8 @@ a section header, a section's length field set to another number (the sections a
 by walking the message as WMO FM 92 GRIB edition 1/2 lay them out: GRIB2 section 0 of 16
 bytes with the total length in bytes 9-16, then sections of ``length(4) number(1)``; GRIB1
 section 0 of 8 bytes with a 3-byte total length, then sections with 3-byte lengths), files
-cut short, messages repeated or dropped.  ``open_analysis`` must return a canonical dataset
+cut short, messages repeated or dropped; also a ``GRIB`` marker followed by random bytes.
+``open_analysis`` must return a canonical dataset
 or raise parcelcast's own error naming the file.
 """
 
@@ -15,7 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from hypothesis import given
+from hypothesis import example, given
 from hypothesis import strategies as st
 
 from fuzz_contract import check_canonical_dataset, fuzz_settings, outcome
@@ -125,8 +126,22 @@ def grib_cache(scratch, monkeypatch):
     return scratch
 
 
+def _found(at: int, value: int) -> bytes:
+    """The valid GRIB 2 file with one byte of its first message set to ``value``."""
+    data = bytearray(b"".join(valid_messages(2)))
+    data[at] = value
+    return bytes(data)
+
+
+#: a marker followed by anything
+random_grib = st.binary(min_size=4, max_size=64).map(lambda b: b"GRIB" + b)
+
+
 @fuzz_settings(150)
-@given(data=damaged_grib())
+@given(data=damaged_grib() | random_grib)
+@example(data=_found(28, 0))  # found by fuzzing: the year's high byte zeroed (year 226)
+@example(data=_found(148, 1))  # found by fuzzing: values that eccodes cannot decode
+@example(data=_found(148, 255))  # found: 4 278 190 100 values stated for 20 points (32 GiB)
 def test_grib_damaged(grib_cache, data):
     path = grib_cache / f"analysis-{next(_COUNTER)}.grb"
     path.write_bytes(data)

@@ -4,7 +4,8 @@ Files are written by xarray/netCDF4 (netCDF-4 and classic) from a small valid an
 faults drawn at random: broken or missing units, wrong or swapped dimensions, NaN/inf/huge
 values in data and coordinates, missing coordinates, a 1-D and a 2-D latitude together, no
 time coordinate, duplicated times, non-monotonic or repeated coordinates; and at byte level:
-files cut short and bytes overwritten.  ``open_analysis`` must return a canonical dataset
+files cut short, bytes overwritten, pieces repeated (also the classic completeness check
+alone, on a file with record variables).  ``open_analysis`` must return a canonical dataset
 (``fuzz_contract.check_canonical_dataset``) or raise parcelcast's own error naming the file.
 """
 
@@ -20,6 +21,7 @@ from hypothesis import strategies as st
 
 from fuzz_contract import check_canonical_dataset, fuzz_settings, outcome
 from parcelcast.io.analysis import open_analysis
+from parcelcast.io.netcdf_classic import check_complete
 
 pytestmark = pytest.mark.slow
 
@@ -235,3 +237,37 @@ def test_netcdf_damaged_bytes(scratch, fmt, cut, edits):
     ds, _ = outcome("NetCDF", open_analysis, path, names=[path])
     if ds is not None:
         check_canonical_dataset(ds)
+
+
+@fuzz_settings(600)
+@given(fmt=st.sampled_from(["NETCDF3_CLASSIC", "NETCDF3_64BIT"]), cut=st.floats(0.0, 1.0),
+       edits=st.lists(st.tuples(st.floats(0.0, 1.0), st.integers(0, 255)), max_size=8),
+       repeat=st.none() | st.tuples(st.floats(0.0, 1.0), st.floats(0.0, 1.0)))
+def test_classic_header_check(scratch, fmt, cut, edits, repeat):
+    """The completeness check of classic files alone (fast, so many inputs): a file with record
+    variables (an unlimited time dimension) cut short, with bytes overwritten (the header's
+    counts and offsets included), or with a piece repeated."""
+    data = bytearray(_record_file(fmt, scratch))
+    for where, value in edits:
+        data[int(where * (len(data) - 1))] = value
+    if repeat is not None:
+        a, b = sorted(int(x * len(data)) for x in repeat)
+        data = data[:b] + data[a:]
+    if cut < 0.5:
+        data = data[: int(cut * 2 * len(data))]
+    path = fresh_path(scratch)
+    path.write_bytes(bytes(data))
+    outcome("NetCDF header", check_complete, path, names=[path])
+
+
+def _record_file(fmt: str, scratch) -> bytes:
+    """Bytes of the valid analysis with time as the record (unlimited) dimension."""
+    key = f"{fmt}-record"
+    if key not in _VALID_FILES:
+        path = scratch / f"valid-{key}.nc"
+        spec = base_dataset()
+        coords = {k: tuple(v) for k, v in spec.items() if k in COORDS}
+        ds = xr.Dataset({k: tuple(v) for k, v in spec.items() if k not in coords}, coords=coords)
+        ds.to_netcdf(path, format=fmt, engine="netcdf4", unlimited_dims=["time"])
+        _VALID_FILES[key] = path.read_bytes()
+    return _VALID_FILES[key]
