@@ -246,7 +246,9 @@ def _print_text(summary: dict, path) -> None:
     print(f"{a['direction']} {a['mode']} trajectories, {a['role']} {a['time']} at "
           f"{a['lat']}, {a['lon']}, {a['pressure_hPa']} hPa ({a['scheme']}, {a['wind']} wind)")
     central = summary["members"][0]
-    print(f"central path ({central['status']}):")
+    from parcelcast.trajectories.completeness import ENDED_BECAUSE
+
+    print(f"central path ({ENDED_BECAUSE.get(central['status'], central['status'])}):")
     for p in central["points"]:
         t = "" if p["temperature_K"] is None else f"  T {formatting.temperature_text(p['temperature_K'])}"
         print(f"  {p['time']}  {p['lat']:8.3f} {p['lon']:9.3f}  {p['pressure_hPa']:7.1f} hPa{t}")
