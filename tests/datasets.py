@@ -273,3 +273,18 @@ def cli_command() -> list[str]:
     if exe:
         return [exe]
     return [sys.executable, "-c", "import sys; from parcelcast.cli import main; sys.exit(main())"]
+
+
+def write_solid_body_netcdf(path):
+    """Solid-body rotation about the pole (24 h, 6-hourly, 2 deg, 850 and 500 hPa) as a CF
+    NetCDF file at ``path``: a parcel at 60N moves east across the dateline."""
+    from parcelcast.trajectories.analytic import solid_body_dataset
+
+    ds = solid_body_dataset(hours=24, step_hours=6, resolution=2.0, levels_hpa=(850.0, 500.0))
+    for name, std in (("u", "eastward_wind"), ("v", "northward_wind"), ("temperature", "air_temperature")):
+        ds[name].attrs.update(standard_name=std)
+    ds.lat.attrs.update(standard_name="latitude", units="degrees_north")
+    ds.lon.attrs.update(standard_name="longitude", units="degrees_east")
+    ds.level.attrs.update(units="Pa")
+    ds.to_netcdf(path)
+    return path

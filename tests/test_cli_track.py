@@ -14,7 +14,7 @@ import pytest
 import xarray as xr
 
 from parcelcast.cli import main
-from parcelcast.trajectories.analytic import solid_body_dataset
+from datasets import write_solid_body_netcdf
 
 DATA = Path(os.environ.get("PARCELCAST_DATA", Path(__file__).resolve().parents[2] / "shared" / "data"))
 ERA5 = DATA / "era5-ens-20170101-20170102-z-t-850-500-3deg.grb1"
@@ -22,15 +22,7 @@ ERA5 = DATA / "era5-ens-20170101-20170102-z-t-850-500-3deg.grb1"
 
 @pytest.fixture(scope="module")
 def nc_file(tmp_path_factory):
-    ds = solid_body_dataset(hours=24, step_hours=6, resolution=2.0, levels_hpa=(850.0, 500.0))
-    for name, std in (("u", "eastward_wind"), ("v", "northward_wind"), ("temperature", "air_temperature")):
-        ds[name].attrs.update(standard_name=std)
-    ds.lat.attrs.update(standard_name="latitude", units="degrees_north")
-    ds.lon.attrs.update(standard_name="longitude", units="degrees_east")
-    ds.level.attrs.update(units="Pa")
-    path = tmp_path_factory.mktemp("nc") / "solid.nc"
-    ds.to_netcdf(path)
-    return path
+    return write_solid_body_netcdf(tmp_path_factory.mktemp("nc") / "solid.nc")
 
 
 def _run(argv, capsys):

@@ -7,7 +7,7 @@ import pytest
 
 from climate_records import wave_record
 
-distributed = pytest.importorskip("distributed")
+import distributed  # noqa: E402
 
 
 @pytest.fixture(scope="module")

@@ -8,28 +8,19 @@ from __future__ import annotations
 
 import json
 
+import geojson
 import numpy as np
 import pytest
 
+from datasets import write_solid_body_netcdf
 from parcelcast.cli import main
 from parcelcast.errors import EXIT_STATUS
-from parcelcast.trajectories.analytic import solid_body_dataset
-
-geojson = pytest.importorskip("geojson")
 
 
 @pytest.fixture(scope="module")
 def dateline_file(tmp_path_factory):
     """Solid-body rotation about the pole: a parcel at 60N moves east across the dateline."""
-    ds = solid_body_dataset(hours=24, step_hours=6, resolution=2.0, levels_hpa=(850.0, 500.0))
-    for name, std in (("u", "eastward_wind"), ("v", "northward_wind"), ("temperature", "air_temperature")):
-        ds[name].attrs.update(standard_name=std)
-    ds.lat.attrs.update(standard_name="latitude", units="degrees_north")
-    ds.lon.attrs.update(standard_name="longitude", units="degrees_east")
-    ds.level.attrs.update(units="Pa")
-    path = tmp_path_factory.mktemp("gj") / "solid.nc"
-    ds.to_netcdf(path)
-    return path
+    return write_solid_body_netcdf(tmp_path_factory.mktemp("gj") / "solid.nc")
 
 
 def _lines(geometry):

@@ -15,7 +15,7 @@ from parcelcast import demo
 from parcelcast.cli import main
 from parcelcast.schemas import COMMANDS, SCHEMA_VERSION, load, validate
 
-jsonschema = pytest.importorskip("jsonschema")
+import jsonschema  # noqa: E402
 
 CASES = Path(__file__).resolve().parents[1] / "case_studies"
 SOUNDING = """pressure_hPa,temperature_degC,dewpoint_degC,wind_direction_deg,wind_speed_kt
