@@ -26,7 +26,7 @@ CASES = (  # file, wind, levels
     ("gfs-20111008T00-f072-global-2p5deg.grb2", "actual", (850, 700)),
     ("era5-ens-20170101-20170102-z-t-850-500-3deg.grb1", "geostrophic", (850, 500)),
 )
-COMMAND = [sys.executable, "-c", "import sys; from parcelcast.cli import main; sys.exit(main())"]
+COMMAND = [sys.executable, "-c", "from parcelcast.cli import console; console()"]
 
 
 def _cpu() -> float:

@@ -33,7 +33,7 @@ from pathlib import Path
 
 REPO = Path(__file__).resolve().parents[1]
 FLOOR = [sys.executable, "-c", "import pyproj, xarray, cfgrib"]
-CLI = [sys.executable, "-c", "import sys; from parcelcast.cli import main; sys.exit(main())"]
+CLI = [sys.executable, "-c", "from parcelcast.cli import console; console()"]
 
 GFS = "gfs-20111008T00-f072-global-2p5deg.grb2"
 ERA5 = "era5-ens-20170101-20170102-z-t-850-500-3deg.grb1"

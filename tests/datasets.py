@@ -272,7 +272,7 @@ def cli_command() -> list[str]:
     exe = shutil.which("parcelcast")
     if exe:
         return [exe]
-    return [sys.executable, "-c", "import sys; from parcelcast.cli import main; sys.exit(main())"]
+    return [sys.executable, "-c", "from parcelcast.cli import console; console()"]
 
 
 def write_solid_body_netcdf(path):

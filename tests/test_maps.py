@@ -44,15 +44,20 @@ def test_crop_makes_longitudes_continuous_across_the_area(fields):
 
 
 def test_advection_map_reads_like_a_chart(fields, tmp_path):
-    import cartopy.mpl.feature_artist as feature_artist
     import cartopy.crs as ccrs
 
     area = [40.0, 60.0, -10.0, 20.0]
     drawn = maps.advection_map(fields, station=("Harbour Point", 50.0, 5.0), area=area)
     ax = drawn["axes"]
     assert drawn["coastlines"] == "Natural Earth 1:50m coastlines and land borders (public domain)"
-    features = [a for a in ax.get_children() if isinstance(a, feature_artist.FeatureArtist)]
-    assert len(features) >= 2  # coastlines and borders
+    drawn_ids = {a.get_gid() for a in ax.get_children()}
+    assert {"coastlines", "borders"} <= drawn_ids
+    # the coastline passes Cap Gris-Nez, 50.87 N 1.58 E (position recalled from memory):
+    # some projected vertex lies within 10 km of it (the map is Lambert conformal, in metres)
+    coast = next(a for a in ax.get_children() if a.get_gid() == "coastlines")
+    vertices = np.concatenate([p.vertices for p in coast.get_paths()])
+    cape = ax.projection.transform_point(1.58, 50.87, ccrs.PlateCarree())
+    assert np.nanmin(np.hypot(*(vertices - cape).T)) < 10e3
     texts = [t.get_text() for t in ax.texts]
     assert any("Harbour Point" in t for t in texts)
     # isotherms in degC: the levels lie within the field's range in Celsius
@@ -100,8 +105,10 @@ def test_trajectory_map_marks_every_6_hours_and_keeps_the_legend_outside(tmp_pat
     paths = compute_trajectories(ds, 50.0, 5.0, Q_(850, "hPa"), Q_(-24, "h"), members=3)
     drawn = trajectory_map(paths, station=("Harbour Point", 50.0, 5.0))
     assert drawn["coastlines"].startswith("Natural Earth")
-    dots = [m for m in drawn["marks"] if hasattr(m, "get_marker")]
-    assert len(dots) == 4  # -6, -12, -18, -24 h on the central path
+    dots = sum(len(m.get_xdata()) for m in drawn["marks"] if hasattr(m, "get_marker"))
+    assert dots == 4  # -6, -12, -18, -24 h on the central path
+    labels = sorted(t.get_text().strip() for t in drawn["marks"] if hasattr(t, "get_text"))
+    assert labels == ["-12 h", "-18 h", "-24 h", "-6 h"]
     widths = sorted(float(np.max(line.get_linewidths())) for line in drawn["lines"])
     assert widths[-1] > 3 * widths[0]  # central bold, members thin
     fig, ax = drawn["figure"], drawn["axes"]
@@ -134,3 +141,62 @@ def test_advect_and_track_draw_maps_of_an_area(tmp_path, capsys):
         assert (tmp_path / name).read_bytes()[:4] == b"\x89PNG"
     text = capsys.readouterr().out
     assert "\u00b0C" in text and " kt" in text  # people read degC and knots
+
+
+def test_graticule_labels_stand_on_their_lines():
+    """Meridian labels sit where the meridian meets the bottom edge; on a conic map the
+    parallels are labelled on the lines (there a parallel curves: at the edge it runs higher
+    than at the centre).  Checked by inverting the projection at each label's anchor."""
+    import cartopy.crs as ccrs
+
+    from parcelcast.render.graticule import draw_graticule
+
+    area = [40.0, 60.0, -10.0, 20.0]
+    fig, ax = maps.new_map(area)
+    drawn = draw_graticule(ax, area)
+    geodetic = ccrs.PlateCarree()
+    texts = {t.get_text(): t for t in drawn["labels"]}
+    assert {"0\u00b0", "10\u00b0E", "45\u00b0N", "50\u00b0N", "55\u00b0N"} <= set(texts)
+    lon, _ = geodetic.transform_point(*texts["10\u00b0E"].xy, ax.projection)
+    assert lon == pytest.approx(10.0, abs=1e-6)
+    x, y = texts["50\u00b0N"].get_position()
+    lon, lat = geodetic.transform_point(x, y, ax.projection)
+    assert lat == pytest.approx(50.0, abs=1e-6) and area[2] < lon < area[3]
+
+
+def test_graticule_on_a_plate_carree_map_labels_parallels_at_the_left_edge():
+    import cartopy.crs as ccrs
+
+    from parcelcast.render.graticule import draw_graticule
+
+    area = [-30.0, 30.0, 0.0, 120.0]  # tropics: plate carree
+    fig, ax = maps.new_map(area)
+    assert isinstance(ax.projection, ccrs.PlateCarree)
+    texts = {t.get_text(): t for t in draw_graticule(ax, area)["labels"]}
+    x, y = texts["10\u00b0S"].xy
+    assert x == pytest.approx(min(ax.get_xlim()))
+    assert ccrs.PlateCarree().transform_point(x, y, ax.projection)[1] == pytest.approx(-10.0)
+
+
+@pytest.mark.parametrize("lat,text", [(50.0, "50\u00b0N"), (-12.0, "12\u00b0S"), (0.0, "0\u00b0"),
+                                      (2.5, "2.5\u00b0N")])
+def test_latitude_text(lat, text):
+    from parcelcast.render.graticule import latitude_text
+
+    assert latitude_text(lat) == text
+
+
+@pytest.mark.parametrize("lon,text", [(5.0, "5\u00b0E"), (-10.0, "10\u00b0W"), (350.0, "10\u00b0W"),
+                                      (0.0, "0\u00b0"), (180.0, "180\u00b0"), (-180.0, "180\u00b0")])
+def test_longitude_text(lon, text):
+    from parcelcast.render.graticule import longitude_text
+
+    assert longitude_text(lon) == text
+
+
+def test_graticule_spacing_gives_a_handful_of_lines():
+    from parcelcast.render.graticule import MAX_LINES, step_for
+
+    for span in (3.0, 20.0, 30.0, 75.0, 180.0, 360.0):
+        step = step_for(span)
+        assert span / step <= MAX_LINES and span / step >= 2

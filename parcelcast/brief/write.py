@@ -34,11 +34,16 @@ CREDITS = ("Coastlines and borders: Made with Natural Earth (public domain). "
            "Computed by parcelcast from the analyses named above.")
 
 
-def write_brief(brief: dict, out_dir) -> dict:
-    """Write the briefing into ``out_dir`` (replaced as a whole); returns the JSON document."""
+def write_brief(brief: dict, out_dir, workers=None) -> dict:
+    """Write the briefing into ``out_dir`` (replaced as a whole); returns the JSON document.
+
+    ``workers``: a :class:`parcelcast.render.parallel.FigureWorkers` entered before the
+    briefing was assembled (so the drawing processes got ready meanwhile); default: the
+    figures are drawn here, one after the other.
+    """
     out_dir = Path(out_dir)
     with atomic_folder(out_dir) as tmp:
-        figures = draw_figures(brief, tmp)
+        figures = draw_figures(brief, tmp, workers)
         doc = json_document(brief, figures)
         write_text(tmp / FILES["json"], json.dumps(doc, indent=2, allow_nan=False) + "\n")
         for fmt in ("html", "markdown"):
@@ -47,11 +52,11 @@ def write_brief(brief: dict, out_dir) -> dict:
 
 
 # --------------------------------------------------------------------------- figures
-def draw_figures(brief: dict, folder: Path) -> list[dict]:
+def draw_figures(brief: dict, folder: Path, workers=None) -> list[dict]:
     """Advection maps (one per level), the trajectory map and the profile diagram, drawn
-    at the same time in worker processes where the machine allows it
-    (:mod:`parcelcast.render.parallel`)."""
-    from parcelcast.render.parallel import draw_in_parallel, preload
+    by ``workers`` (:class:`parcelcast.render.parallel.FigureWorkers`) or one after the
+    other here."""
+    from parcelcast.render.parallel import FigureWorkers
 
     station = (brief["station"]["name"], brief["station"]["lat"], brief["station"]["lon"])
     jobs, figures = [], []
@@ -83,8 +88,12 @@ def draw_figures(brief: dict, folder: Path) -> list[dict]:
         figures.append({"file": name, "kind": "profile_diagram",
                         "caption": "Profile at the station (skew-T log-p): temperature, dew point, "
                         "lifted parcel, winds in kt and the advection profile."})
-    preload()
-    for figure, drawn in zip(figures, draw_in_parallel(jobs)):
+    if workers is None:
+        with FigureWorkers(workers=1) as workers:
+            results = workers.draw(jobs)
+    else:
+        results = workers.draw(jobs)
+    for figure, drawn in zip(figures, results):
         figure.update(drawn)
     order = {"advection_map": 0, "trajectory_map": 1, "profile_diagram": 2}  # as on the page
     figures.sort(key=lambda f: order[f["kind"]])

@@ -11,6 +11,7 @@ from __future__ import annotations
 import argparse
 import importlib
 import logging
+import os
 import sys
 
 #: command name -> (module, one-line help)
@@ -97,8 +98,26 @@ def configure_logging(quiet: bool = False, verbose: bool = False) -> None:
         logger.propagate = False  # shown once, by our handler
 
 
+def console() -> None:
+    """The ``parcelcast`` command: :func:`main`, then the process ends at once.
+
+    When :func:`main` returns, every output is written whole and closed and the drawing
+    processes have been joined; the at-exit handlers still run (logging is flushed).  What
+    is skipped is the interpreter freeing each object of every imported module, which a
+    finished command does not need and which costs 0.1-0.3 s (a tenth to a third of a
+    one-point question).
+    """
+    import atexit
+
+    status = main()
+    atexit._run_exitfuncs()  # the handlers an ordinary exit runs, before os._exit skips the rest
+    sys.stdout.flush()
+    sys.stderr.flush()
+    os._exit(status)
+
+
 def main(argv: list[str] | None = None) -> int:
-    """Entry point of the console script; returns the exit status."""
+    """The command line (``argv`` without the program name); returns the exit status."""
     from parcelcast.cli._common import attach_negative_values
 
     argv = attach_negative_values(list(sys.argv[1:] if argv is None else argv))
@@ -124,4 +143,4 @@ def main(argv: list[str] | None = None) -> int:
 
 
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    console()

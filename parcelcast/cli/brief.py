@@ -19,10 +19,12 @@ def run(args) -> int:
 
     from parcelcast.brief import assemble_brief, read_config, write_brief
     from parcelcast.brief.write import FILES
+    from parcelcast.render.parallel import FigureWorkers
 
     config = read_config(args.config)
     out = Path(args.out or f"brief-{Path(args.config).stem}")
-    doc = write_brief(assemble_brief(config), out)
+    with FigureWorkers() as workers:  # they load the drawing libraries while the data are read
+        doc = write_brief(assemble_brief(config), out, workers)
     print("\n".join(doc["summary"]))
     print(f"\nbriefing written to {out}/ ({', '.join(FILES.values())} and "
           f"{len(doc['figures'])} figures)")

@@ -69,6 +69,7 @@ def _briefing(out, ds, area):
     from parcelcast import demo
     from parcelcast.brief import assemble_brief, read_config, write_brief
     from parcelcast.io.atomic import write_text
+    from parcelcast.render.parallel import FigureWorkers
 
     write_text(out / BRIEF_CONFIG, "\n".join([
         "# The demo's morning briefing: parcelcast brief demo-brief.toml --out brief",
@@ -76,8 +77,9 @@ def _briefing(out, ds, area):
         f"lon = {demo.STATION_LON}", "[data]", 'analyses = ["demo-analysis.nc"]', 'wind = "actual"',
         "[brief]", "levels_hPa = [850, 700]", f"area_lat = [{area[0]}, {area[1]}]",
         f"area_lon = [{area[2]}, {area[3]}]", "trajectory_hours = 24", ""]))
-    brief = assemble_brief(read_config(out / BRIEF_CONFIG), ds)
-    write_brief(brief, out / "brief")
+    with FigureWorkers() as workers:
+        brief = assemble_brief(read_config(out / BRIEF_CONFIG), ds)
+        write_brief(brief, out / "brief", workers)
     print("\nMorning briefing (invented scenario):")
     print("\n".join(f"  {line}" for line in brief["summary"]))
     return out / "brief"

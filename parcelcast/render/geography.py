@@ -45,9 +45,12 @@ def scale_for(area) -> str:
 
 def draw_geography(ax, area=None) -> str:
     """Draw coastlines and land borders on a cartopy ``GeoAxes``; returns the data set's name.
+    The two artists carry the ids (``get_gid()``) ``"coastlines"`` and ``"borders"``.
 
-    Set the map's extent first: the shapes are clipped to it (a little wider) before
-    cartopy projects them, which is most of the drawing time of a regional map.
+    Set the map's extent first: the shapes are clipped to it (a little wider) and, on a
+    regional map, projected once as plain lines (:mod:`parcelcast.render.lines`); a map
+    (nearly) all the way round the globe leaves the projection to cartopy, which cuts lines
+    at the map's edge.
 
     Parameters
     ----------
@@ -59,15 +62,24 @@ def draw_geography(ax, area=None) -> str:
     import cartopy.crs as ccrs
     import cartopy.feature as cfeature
 
+    from parcelcast.render.lines import projected_collection, shape_polylines
+
     use_packaged_shapes()
     scale = scale_for(area)
     box = _clip_box(ax)
-    for feature, style in ((cfeature.COASTLINE, {"linewidth": 0.9, "edgecolor": "black"}),
-                           (cfeature.BORDERS, {"linewidth": 0.6, "edgecolor": "#3d3d3d",
-                                               "linestyle": (0, (4, 2))})):
+    for name, feature, style in (
+            ("coastlines", cfeature.COASTLINE, {"linewidth": 0.9, "edgecolor": "black"}),
+            ("borders", cfeature.BORDERS, {"linewidth": 0.6, "edgecolor": "#3d3d3d",
+                                           "linestyle": (0, (4, 2))})):
         shapes = _shapes(feature.with_scale(scale), box)
-        ax.add_feature(cfeature.ShapelyFeature(shapes, ccrs.PlateCarree()), facecolor="none",
-                       zorder=3, **style)
+        if box is None:
+            ax.add_feature(cfeature.ShapelyFeature(shapes, ccrs.PlateCarree()), facecolor="none",
+                           zorder=3, gid=name, **style)
+            continue
+        lines, _ = projected_collection(ax, shape_polylines(shapes), zorder=3, gid=name, **{
+            "linewidths": style["linewidth"], "colors": style["edgecolor"],
+            "linestyles": style.get("linestyle", "solid")})
+        ax.add_collection(lines, autolim=False)
     return SOURCE_NAME.format(scale="1:" + scale)
 
 

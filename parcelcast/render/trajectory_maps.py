@@ -12,6 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from parcelcast import formatting
+from parcelcast.render.lines import project_points
 from parcelcast.render.maps import (
     DISCLAIMER_SHORT,
     check_area,
@@ -93,7 +94,6 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
         ``figure``, ``axes``, ``lines`` (one per trajectory), ``marks`` (the 6-hourly dots),
         ``area``, ``coastlines``.
     """
-    import cartopy.crs as ccrs
     from matplotlib import patheffects
     from matplotlib.collections import LineCollection
     from matplotlib.colors import Normalize
@@ -114,7 +114,6 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
     norm = Normalize(vmin=lo, vmax=hi)
     lines, marks, handles = [], [], []
     backward = groups[0][1].attrs.get("direction", "backward") == "backward"
-    geodetic = ccrs.PlateCarree()
     for g, (label, part) in enumerate(groups):
         marker = _MARKERS[g % len(_MARKERS)]
         order = np.argsort(part["central"].values, kind="stable")  # central drawn last, on top
@@ -125,11 +124,11 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
             ok = np.isfinite(lat) & np.isfinite(lon)
             if ok.sum() < 2:
                 continue
-            xy = np.column_stack([lon[ok], lat[ok]])
+            xy = np.column_stack(project_points(ax, lon[ok], lat[ok]))
             segments = np.stack([xy[:-1], xy[1:]], axis=1)
             p = part["pressure"].values[k][ok] / 100.0
             collection = LineCollection(
-                segments, cmap=PRESSURE_CMAP, norm=norm, transform=geodetic,
+                segments, cmap=PRESSURE_CMAP, norm=norm,
                 linewidths=3.2 if central else 0.7, alpha=1.0 if central else 0.55,
                 zorder=5 if central else 4,
                 capstyle="round")
@@ -137,10 +136,10 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
             if central:
                 collection.set_path_effects([patheffects.Stroke(linewidth=4.6, foreground="black"),
                                              patheffects.Normal()])
-            ax.add_collection(collection)
+            ax.add_collection(collection, autolim=False)  # the map's extent is set
             lines.append(collection)
             if central:
-                marks += _time_marks(ax, part, k, geodetic, marker)
+                marks += _time_marks(ax, part, k, marker)
         handles.append(Line2D([], [], color="black", linewidth=3.0, marker=marker, markersize=7,
                               markerfacecolor="white", markeredgecolor="black",
                               label=f"{label}: central path bold, members thin, marks every "
@@ -168,22 +167,22 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
             "coastlines": coastlines}
 
 
-def _time_marks(ax, part, k, transform, marker="o"):
-    """White dots every 6 h on trajectory ``k`` (counted from its start), labelled in hours."""
+def _time_marks(ax, part, k, marker="o"):
+    """White dots every 6 h on trajectory ``k`` (counted from its start), labelled in hours:
+    one marker line holding the dots, then one text per dot."""
     from matplotlib import patheffects
 
     times = part["time"].values[k]
-    ok = ~np.isnat(times)
+    ok = ~np.isnat(times) & np.isfinite(part["lat"].values[k]) & np.isfinite(part["lon"].values[k])
     hours = (times[ok] - times[ok][0]) / np.timedelta64(1, "h")
-    lat = part["lat"].values[k][ok]
-    lon = _unwrapped(part["lon"].values[k][ok])
-    drawn = []
-    for h, la, lo in zip(hours, lat, lon):
-        if abs(h) < 1e-6 or abs(h / MARK_HOURS - round(h / MARK_HOURS)) > 1e-6:
-            continue
-        drawn += ax.plot(lo, la, marker=marker, markersize=6, markerfacecolor="white",
-                         markeredgecolor="black", transform=transform, zorder=6, linestyle="none")
-        drawn.append(ax.text(lo, la, f" {h:+.0f} h", fontsize=7, transform=transform, zorder=7,
-                             va="bottom", path_effects=[patheffects.withStroke(linewidth=2.5,
-                                                                              foreground="white")]))
+    at = (np.abs(hours) > 1e-6) & (np.abs(hours / MARK_HOURS - np.round(hours / MARK_HOURS)) <= 1e-6)
+    if not at.any():
+        return []
+    x, y = project_points(ax, _unwrapped(part["lon"].values[k][ok])[at], part["lat"].values[k][ok][at])
+    drawn = ax.plot(x, y, marker=marker, markersize=6, markerfacecolor="white",
+                    markeredgecolor="black", zorder=6, linestyle="none")
+    halo = [patheffects.withStroke(linewidth=2.5, foreground="white")]
+    for h, xi, yi in zip(hours[at], x, y):
+        drawn.append(ax.text(xi, yi, f" {h:+.0f} h", fontsize=7, zorder=7, va="bottom",
+                             path_effects=halo))
     return drawn
