@@ -50,7 +50,7 @@ def _json(argv) -> dict:
 
 
 def _config(folder: Path, name: str, lat: float, lon: float, analyses: str, wind: str,
-            levels, area_lat, area_lon, hours: float = 24) -> Path:
+            levels, area_lat, area_lon, hours: float = 24, extra: str = "") -> Path:
     path = folder / "brief.toml"
     path.write_text(f"""[station]
 name = "{name}"
@@ -64,7 +64,7 @@ levels_hPa = {list(levels)}
 area_lat = {list(area_lat)}
 area_lon = {list(area_lon)}
 trajectory_hours = {hours}
-""")
+{extra}""")
     return path
 
 
@@ -92,18 +92,18 @@ def demo_brief(tmp_path_factory):
     return {"folder": folder, **_brief(folder, config)}
 
 
-def _real_brief(tmp_path_factory, name: str, wind: str, levels) -> dict:
+def _real_brief(tmp_path_factory, name: str, wind: str, levels, extra: str = "") -> dict:
     """The briefing at Harbour Point (50 N, 5 E; invented name) from one shared-data file."""
     path = data_file(name)
     folder = tmp_path_factory.mktemp("brief-real")
     config = _config(folder, "Harbour Point", 50.0, 5.0, str(path), wind, levels,
-                     [40.0, 60.0], [-10.0, 20.0])
+                     [40.0, 60.0], [-10.0, 20.0], extra=extra)
     return {"file": path, **_brief(folder, config)}
 
 
 @pytest.fixture(scope="module")
 def gfs_brief(tmp_path_factory):
-    return _real_brief(tmp_path_factory, GFS, "actual", [850, 700])
+    return _real_brief(tmp_path_factory, GFS, "actual", [850, 700], extra="surface = true")
 
 
 @pytest.fixture(scope="module")
@@ -148,8 +148,10 @@ def _headings(html: str, markdown: str) -> tuple[list[str], list[str]]:
 
 def _check_levels_agree_with_advect(doc, path, wind):
     for level in doc["levels"]:
-        at = _json(["advect", str(path), "--level", f"{level['level_hPa']:g}", "--wind", wind,
+        name = "surface" if level["level_hPa"] is None else f"{level['level_hPa']:g}"
+        at = _json(["advect", str(path), "--level", name, "--wind", wind,
                     "--at", f"{doc['station']['lat']},{doc['station']['lon']}"])
+        assert level["level"] == at["level"] and level["level_hPa"] == at["level_hPa"]
         assert at["time"] == doc["valid_time"]
         assert level["advection_K_per_h"] == at["advection_K_per_h"]
         assert level["missing_points_by_reason"] == at["missing_points_by_reason"]
@@ -192,8 +194,24 @@ def test_gfs_briefing_has_no_trajectory_and_says_why(gfs_brief):
     assert any("No back trajectory" in s for s in doc["summary"])
     assert doc["profile"]["available"] is True  # 26 levels with humidity
     kinds = [f["kind"] for f in doc["figures"]]
-    assert kinds == ["advection_map", "advection_map", "profile_diagram"]
+    assert kinds == ["advection_map", "advection_map", "advection_map", "profile_diagram"]
+    # surface = true: the 2-m temperature and 10-m wind after the pressure levels, as
+    # `advect --level surface` (GFS has both, PROVENANCE.md)
+    assert [lev["level"] for lev in doc["levels"]] == ["850 hPa", "700 hPa", "surface"]
+    assert doc["levels"][-1]["available"] and doc["levels"][-1]["level_hPa"] is None
+    assert any(s.startswith("At the surface (2-m temperature, 10-m wind):") for s in doc["summary"])
+    assert doc["figures"][2]["file"] == "advection-surface.png" and doc["figures"][2]["level"] == "surface"
     _check_levels_agree_with_advect(doc, gfs_brief["file"], "actual")
+
+
+def test_the_surface_level_with_the_geostrophic_wind_says_why_not():
+    from parcelcast.brief.assemble import level_entry
+    from parcelcast.brief.config import BriefConfig
+
+    config = BriefConfig("Harbour Point", 50.0, 5.0, ["x.grb"], wind="geostrophic", surface=True)
+    entry = level_entry(None, config, "surface", None)
+    assert entry["available"] is False and entry["level_hPa"] is None
+    assert '[data] wind = "actual"' in entry["reason"]
 
 
 @pytest.mark.realdata

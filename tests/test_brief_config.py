@@ -36,6 +36,9 @@ def test_the_issue_example_reads(tmp_path):
     assert config.levels_hpa == [850.0, 700.0]
     assert config.map_area() == [40.0, 60.0, -10.0, 20.0]
     assert config.trajectory_hours == 24.0 and config.wind == "actual"
+    assert config.surface is False  # the near-surface level only when asked for
+    with_surface = read_config(_write(tmp_path, ISSUE_EXAMPLE + "surface = true\n"))
+    assert with_surface.surface is True
 
 
 def test_unknown_key_lists_the_valid_ones(tmp_path):
@@ -62,6 +65,7 @@ def test_unknown_table_is_refused(tmp_path):
     ("trajectory_hours = 24", "trajectory_hours = -6", "[brief] trajectory_hours"),
     ("trajectory_hours = 24", "trajectory_hours = true", "[brief] trajectory_hours"),
     ('name = "Harbour Point"', "name = 3", "[station] name"),
+    ("trajectory_hours = 24", 'trajectory_hours = 24\nsurface = "yes"', "[brief] surface"),
 ])
 def test_bad_values_name_the_key(tmp_path, old, new, key):
     assert old in ISSUE_EXAMPLE

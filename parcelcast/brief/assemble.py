@@ -26,6 +26,8 @@ from parcelcast.errors import ParcelcastError, ParcelcastWarning
 #: roles the briefing reads (those absent from the files are simply not there)
 ROLES = ("temperature", "u", "v", "geopotential", "omega", "relative_humidity",
          "specific_humidity", "surface_pressure", "orography", "near_surface_temperature")
+#: read as well for the near-surface level (``[brief] surface = true``)
+SURFACE_ROLES = ("near_surface_u", "near_surface_v")
 
 
 def _number(value, digits: int = 4):
@@ -54,6 +56,7 @@ def assemble_brief(config: BriefConfig, ds=None) -> dict:
         warnings.simplefilter("always", ParcelcastWarning)
         if ds is None:
             roles = [r for r in ROLES if not (config.wind == "geostrophic" and r in ("u", "v"))]
+            roles += list(SURFACE_ROLES) if config.surface and config.wind == "actual" else []
             ds = open_analysis(config.analyses, roles=roles)
         valid_time = select_time(ds[["temperature"]], config.time)["time"].values
         brief = {
@@ -65,7 +68,8 @@ def assemble_brief(config: BriefConfig, ds=None) -> dict:
             "source_files": ds.attrs.get("source_files", "").split(";"),
             "analysis_times": [t for t in ds["time"].values],
             "members_in_analysis": int(ds.sizes.get("member", 1)),
-            "levels": [level_entry(ds, config, level, valid_time) for level in config.levels_hpa],
+            "levels": [level_entry(ds, config, level, valid_time) for level in
+                       config.levels_hpa + (["surface"] if config.surface else [])],
         }
         brief["trajectories"] = trajectory_entry(ds, config, valid_time)
         brief["split"] = split_entry(ds, config, valid_time, brief["trajectories"])
@@ -85,24 +89,30 @@ def _unique(items: list[str]) -> list[str]:
 
 
 # --------------------------------------------------------------------------- levels
-def level_entry(ds, config: BriefConfig, level_hpa: float, valid_time) -> dict:
-    """The station's values on one level: the numbers of ``advect --at`` (member means),
-    with temperature in degC and wind as direction and speed in knots."""
+def level_entry(ds, config: BriefConfig, level, valid_time) -> dict:
+    """The station's values on one level (hPa, or ``"surface"``: 2-m temperature and 10-m
+    wind): the numbers of ``advect --at`` (member means), with temperature in degC and wind
+    as direction and speed in knots.  ``level`` and ``level_hPa`` as in ``advect --json``
+    (``level_hPa`` null at the surface)."""
     from parcelcast.advection import advection_on_level
     from parcelcast.sampling import value_at
-    from parcelcast.selection import member_mean
+    from parcelcast.selection import is_surface, level_json, member_mean
 
+    if is_surface(level) and config.wind != "actual":
+        return {**level_json(level), "available": False,
+                "reason": "the near-surface level uses the analysed 10-m wind ([data] wind = "
+                "\"actual\"); the geostrophic wind comes from geopotential on pressure levels"}
     try:
-        fields = advection_on_level(ds, level_hpa, valid_time, config.wind)
+        fields = advection_on_level(ds, level, valid_time, config.wind)
     except ParcelcastError as exc:
-        return {"level_hPa": level_hpa, "available": False, "reason": str(exc)}
+        return {**level_json(level), "available": False, "reason": str(exc)}
     at = value_at(fields, config.lat, config.lon)
     temperature = _number(member_mean(at["temperature"]), 3)
     u = _number(member_mean(at["u"]), 3)
     v = _number(member_mean(at["v"]), 3)
     adv = at["temperature_advection"] * 3600.0
     entry = {
-        "level_hPa": level_hpa,
+        **level_json(level),
         "available": True,
         "temperature_K": temperature,
         "temperature_degC": _number(formatting.celsius(temperature), 2),
@@ -320,18 +330,26 @@ def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
 
 
 # --------------------------------------------------------------------------- cautions
+def level_name(entry: dict) -> str:
+    """A level entry's level for people: ``"850 hPa"``, or the surface (2-m temperature,
+    10-m wind)."""
+    from parcelcast.selection import level_label
+
+    return level_label("surface" if entry["level_hPa"] is None else entry["level_hPa"])
+
+
 def _missing_warnings(brief: dict) -> list[str]:
     out = []
     for lev in brief["levels"]:
         if lev.get("available") and lev["missing_points_in_area"]:
-            out.append(f"{lev['level_hPa']:g} hPa: {lev['missing_points_in_area']} grid points in the "
+            out.append(f"{level_name(lev)}: {lev['missing_points_in_area']} grid points in the "
                        "map area have no advection value (below the ground, or missing in the file); "
                        "they are grey on the map")
         if lev.get("available") and lev["advection_K_per_h"] is None:
-            out.append(f"{lev['level_hPa']:g} hPa: no advection value at the station (missing data "
+            out.append(f"{level_name(lev)}: no advection value at the station (missing data "
                        "around it)")
         if not lev.get("available"):
-            out.append(f"{lev['level_hPa']:g} hPa: {lev['reason']}")
+            out.append(f"{level_name(lev)}: {lev['reason']}")
     traj = brief["trajectories"]
     if traj["available"] and not traj["complete"]:
         out.append(f"the central back trajectory did not cover the full {traj['hours']:g} h "

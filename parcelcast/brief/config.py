@@ -16,6 +16,7 @@
     trajectory_hours = 24
     members = 5                     # optional: trajectories in the cloud of starts
     time = 2017-01-02T12:00:00Z     # optional: valid time (default: the latest analysis)
+    surface = true                  # optional: also the 2-m temperature and 10-m wind
 
 ``${PARCELCAST_DATA}`` in a path is replaced by that environment variable.  An unknown key
 is an error that lists the valid ones; a value of the wrong type or out of range is an
@@ -46,7 +47,8 @@ KEYS: dict[str, dict[str, tuple[bool, str]]] = {
               "area_lon": (False, "[west, east] in degrees"),
               "trajectory_hours": (False, "hours of back trajectory, 1..240"),
               "members": (False, "trajectories in the cloud of starts, 1..50"),
-              "time": (False, "valid time, UTC (default: the latest analysis)")},
+              "time": (False, "valid time, UTC (default: the latest analysis)"),
+              "surface": (False, "true: also the near-surface level (2-m temperature, 10-m wind)")},
 }
 
 
@@ -66,6 +68,7 @@ class BriefConfig:
     trajectory_hours: float = 24.0
     members: int = 5
     time: np.datetime64 | None = None
+    surface: bool = False  # also the near-surface level, after the pressure levels
     source: Path | None = None
 
     def map_area(self) -> list[float]:
@@ -134,6 +137,10 @@ def config_from_dict(data: dict, path: Path) -> BriefConfig:
         config.members = members
     if "time" in brief:
         config.time = _time(brief["time"], where)
+    if "surface" in brief:
+        if not isinstance(brief["surface"], bool):
+            raise BriefConfigError(f"{where}: [brief] surface must be true or false; got {brief['surface']!r}")
+        config.surface = brief["surface"]
     return config
 
 

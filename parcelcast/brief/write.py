@@ -13,6 +13,7 @@ import json
 from pathlib import Path
 
 from parcelcast import formatting
+from parcelcast.brief.assemble import level_name
 from parcelcast.io.atomic import atomic_folder, write_text
 
 FILES = {"html": "brief.html", "markdown": "brief.md", "json": "brief.json"}
@@ -74,10 +75,13 @@ def draw_figures(brief: dict, folder: Path, workers=None) -> list[dict]:
     for level in brief["levels"]:
         if not level.get("available"):
             continue
-        name = f"advection-{level['level_hPa']:g}hPa.png"
+        surface = level["level_hPa"] is None
+        name = "advection-surface.png" if surface else f"advection-{level['level_hPa']:g}hPa.png"
         jobs.append((_advection_figure, (level["_fields"], folder / name, station, brief["area"])))
-        figures.append({"file": name, "kind": "advection_map", "level_hPa": level["level_hPa"],
-                        "caption": f"Temperature advection at {level['level_hPa']:g} hPa, valid "
+        figures.append({"file": name, "kind": "advection_map", "level": level["level"],
+                        "level_hPa": level["level_hPa"],
+                        "caption": f"Temperature advection at {'the ' if surface else ''}"
+                        f"{level_name(level)}, valid "
                         f"{formatting.time_text(brief['valid_time'])}: red warm, blue cold (K/h); "
                         "isotherms in \u00b0C; barbs in kt."})
     prof = brief["profile"]
@@ -97,7 +101,8 @@ def draw_figures(brief: dict, folder: Path, workers=None) -> list[dict]:
         figure.update(drawn)
     order = {"advection_map": 0, "trajectory_map": 1, "profile_diagram": 2}  # as on the page
     figures.sort(key=lambda f: order[f["kind"]])
-    return [{key: f[key] for key in ("file", "kind", "area", "coastlines", "level_hPa", "caption")
+    return [{key: f[key] for key in ("file", "kind", "area", "coastlines", "level", "level_hPa",
+                                     "caption")
              if key in f} for f in figures]
 
 
@@ -196,11 +201,11 @@ def _sentence(text: str) -> str:
 
 def _level_row(level: dict) -> list[str]:
     if not level.get("available"):
-        return [f"{level['level_hPa']:g} hPa", formatting.MISSING, formatting.MISSING, level["reason"]]
+        return [level_name(level), formatting.MISSING, formatting.MISSING, level["reason"]]
     advection = formatting.advection_text(level["advection_K_per_h"])
     if level.get("advection_spread_K_per_h") is not None:
         advection += f" (members \u00b1{level['advection_spread_K_per_h']:.2f})"
-    return [f"{level['level_hPa']:g} hPa", formatting.temperature_text(level["temperature_K"]),
+    return [level_name(level), formatting.temperature_text(level["temperature_K"]),
             formatting.wind_text(level["u_m_s"], level["v_m_s"]), advection]
 
 
