@@ -17,7 +17,7 @@ is conserved along our adiabats to within about 0.2 K from 1000 to 300 hPa (see 
 
 :func:`pseudoadiabat_lookup` gives the same curves (within 0.01 K) by bilinear
 interpolation in a table built once from :func:`pseudoadiabat`; the parcel kernel
-uses it (through the same compiled lookup) because it needs no integration per parcel.
+uses it (through the same lookup loop) because it needs no integration per parcel.
 """
 
 from __future__ import annotations
@@ -200,12 +200,13 @@ def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     180-330 K at 1000 hPa every 0.2 K, on ln p steps of 0.01 from 1100 to 4 hPa,
     integrated by :func:`pseudoadiabat`.  Interpolation error is below 0.01 K
     (tested); points outside the table give NaN.  The lookup (bisection for the curve
-    through the start, then bilinear interpolation) is a compiled loop shared with the
-    parcel code (:mod:`parcelcast.thermo._parcel_kernel`, numba).
+    through the start, then bilinear interpolation) is a loop shared with the parcel code
+    (:mod:`parcelcast.thermo._parcel_loops`; compiled for many curves, see
+    :func:`parcelcast.thermo.parcel.column_loops`).
 
     Parameters and returns as in :func:`pseudoadiabat`.
     """
-    from parcelcast.thermo._parcel_kernel import pseudoadiabat_lookup_columns
+    from parcelcast.thermo.parcel import column_loops
 
     t0 = np.asarray(temperature_start, dtype=np.float64)
     p0 = np.asarray(pressure_start, dtype=np.float64)
@@ -217,5 +218,6 @@ def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     p2 = np.array(plev.reshape(1, nlev) if plev.ndim == 1 else np.broadcast_to(plev, shape + (nlev,)),
                   order="C").reshape(-1, nlev)
     out = np.empty((int(np.prod(shape)), nlev))
-    pseudoadiabat_lookup_columns(_table(), _TABLE_LNP[0], _TABLE_DLNP, flat(t0), flat(p0), p2, out)
+    loops = column_loops(out.shape[0])
+    loops.pseudoadiabat_lookup_columns(_table(), _TABLE_LNP[0], _TABLE_DLNP, flat(t0), flat(p0), p2, out)
     return out.reshape(shape + (nlev,))
