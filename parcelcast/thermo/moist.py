@@ -189,14 +189,25 @@ _TABLE_LNP = np.arange(np.log(110000.0), np.log(400.0) - 1e-9, -_TABLE_DLNP)
 
 @functools.lru_cache(maxsize=1)
 def _table():
-    """Pseudo-adiabats on the grid (n_curves, n_lnp), built once by :func:`pseudoadiabat` (RK4)."""
-    return pseudoadiabat(_TABLE_T1000, 100000.0, np.exp(_TABLE_LNP), max_step=0.01)
+    """Pseudo-adiabats on the grid (n_curves, n_lnp), built by :func:`pseudoadiabat` (RK4)
+    once per installation: kept in the cache folder (``cache.cached_array``, about 0.1 s to
+    build, a few ms to read), under a hash of this module and the constants."""
+    from pathlib import Path
+
+    from parcelcast.cache import cached_array
+    from parcelcast.thermo import constants
+
+    def build():
+        return pseudoadiabat(_TABLE_T1000, 100000.0, np.exp(_TABLE_LNP), max_step=0.01)
+
+    sources = [Path(__file__), Path(constants.__file__), Path(constants.__file__).parents[1] / "constants.py"]
+    return cached_array("pseudoadiabats", sources, build, (_TABLE_T1000.size, _TABLE_LNP.size))
 
 
 def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     """Like :func:`pseudoadiabat`, by bilinear interpolation in a table of pseudo-adiabats.
 
-    The table (built once per process, about 0.1 s) holds the curves through
+    The table (built once and kept in the cache folder, about 0.1 s) holds the curves through
     180-330 K at 1000 hPa every 0.2 K, on ln p steps of 0.01 from 1100 to 4 hPa,
     integrated by :func:`pseudoadiabat`.  Interpolation error is below 0.01 K
     (tested); points outside the table give NaN.  The lookup (bisection for the curve
