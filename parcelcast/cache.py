@@ -3,8 +3,8 @@
 The folder is ``$PARCELCAST_CACHE`` if set, else the user's cache folder
 (``$XDG_CACHE_HOME/parcelcast``, by default ``~/.cache/parcelcast`` on Linux, through
 platformdirs).  It holds GRIB index files (``grib-index/``), the results of the GRIB
-message scan (``grib-scan/``), numba's compiled kernels (``numba/``) and pint's
-parsed unit definitions (``pint/``).
+message scan (``grib-scan/``), numba's compiled kernels (``numba/``), pint's
+parsed unit definitions (``pint/``) and computed tables (``tables/``, see :func:`cached_array`).
 
 cfgrib's index files, numba's cache index and pint's cache are read back with pickle, and
 unpickling a planted file runs its code.  So the folder is made private to the user
@@ -158,3 +158,43 @@ def configure_numba_cache() -> None:
         import logging
 
         logging.getLogger("parcelcast").warning(f"compiled kernels are not cached in our folder: {exc}")
+
+
+def cached_array(name: str, sources: list[Path], build, shape: tuple):
+    """The float64 array ``build()``, kept in the cache's ``tables/`` as a ``.npy`` file.
+
+    The file's name carries a hash of the ``sources`` (the code that computes the array)
+    and numpy's version, so a change to either builds it afresh.  It is read without pickle
+    (``allow_pickle=False``), after the checks of :func:`check_private_file`; one that does
+    not read, or not as a float64 array of ``shape``, is built again and replaced.  Without a
+    safe cache folder the array is built and not kept.
+    """
+    import hashlib
+
+    import numpy as np
+
+    digest = hashlib.sha1(np.__version__.encode())
+    for source in sources:
+        digest.update(Path(source).read_bytes())
+    try:
+        path = cache_folder("tables") / f"{name}.{digest.hexdigest()[:16]}.npy"
+        check_private_file(path)
+    except (OSError, UnsafeCacheError):
+        return build()
+    try:
+        array = np.load(path, allow_pickle=False)
+        if array.dtype == np.float64 and array.shape == shape:
+            return array
+    except (OSError, ValueError):
+        pass  # absent or damaged: built again
+    array = build()
+    temporary = path.with_name(f"{path.name}.{os.getpid()}.part")
+    try:
+        with open(temporary, "wb") as handle:
+            np.save(handle, array, allow_pickle=False)
+        make_private(temporary)
+        temporary.replace(path)  # atomic: a concurrent run reads the old file or the new one
+        prune(path.parent)
+    except OSError:
+        temporary.unlink(missing_ok=True)
+    return array

@@ -134,7 +134,7 @@ def test_prepare_compiles_every_kernel_into_our_cache_folder(tmp_path):
     report = json.loads(done.stdout)
     assert report["cache"] == str(tmp_path / "cache" / "numba")
     compiled = {p.name.split(".")[0] for p in (tmp_path / "cache" / "numba").rglob("*.nbi")}
-    assert compiled == {"_advection_kernel", "_kernel", "_parcel_kernel"}
+    assert compiled == {"_advection_kernel", "_kernel", "_parcel_loops"}  # the parcel loops keep their file's name
 
 
 @pytest.mark.realdata
@@ -150,3 +150,78 @@ def test_scan_entry_of_another_version_is_scanned_again(xdg):
     entry.write_text(json.dumps(record))
     again = grib.cached_scan(path)
     assert again.earth == fresh.earth and again.earth
+
+
+def _counted_build(calls):
+    import numpy as np
+
+    def build():
+        calls.append(1)
+        return np.arange(6.0).reshape(2, 3) / 7.0
+
+    return build
+
+
+def test_cached_array_is_built_once_then_read_back_exactly(xdg, tmp_path):
+    import numpy as np
+
+    source = tmp_path / "code.py"
+    source.write_text("x = 1\n")
+    calls = []
+    first = cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    again = cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    assert calls == [1] and np.array_equal(first, again) and again.dtype == np.float64
+    (kept,) = cache.cache_folder("tables").glob("t.*.npy")
+    assert (kept.stat().st_mode & 0o777) == 0o600
+    source.write_text("x = 2\n")  # the code changed: built again, under another name
+    cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    assert calls == [1, 1] and len(list(cache.cache_folder("tables").glob("t.*.npy"))) == 2
+
+
+@pytest.mark.parametrize("damage", ["truncated", "other-shape", "pickled"])
+def test_cached_array_that_does_not_read_as_expected_is_built_again(xdg, tmp_path, damage):
+    import numpy as np
+
+    source = tmp_path / "code.py"
+    source.write_text("x = 1\n")
+    calls = []
+    expected = cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    (kept,) = cache.cache_folder("tables").glob("t.*.npy")
+    if damage == "truncated":
+        kept.write_bytes(kept.read_bytes()[:40])
+    elif damage == "other-shape":
+        np.save(kept, np.zeros(4))
+    else:  # an object array needs pickle, which is never used to read
+        np.save(kept, np.array([{"a": 1}], dtype=object), allow_pickle=True)
+    assert np.array_equal(cache.cached_array("t", [source], _counted_build(calls), (2, 3)), expected)
+    assert calls == [1, 1]
+    assert np.array_equal(np.load(kept, allow_pickle=False), expected)  # replaced
+
+
+def test_cached_array_others_can_write_is_not_read(xdg, tmp_path):
+    source = tmp_path / "code.py"
+    source.write_text("x = 1\n")
+    calls = []
+    cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    (kept,) = cache.cache_folder("tables").glob("t.*.npy")
+    kept.chmod(0o666)
+    cache.cached_array("t", [source], _counted_build(calls), (2, 3))
+    assert calls == [1, 1]  # built, not read
+
+
+def test_pseudoadiabat_table_from_the_cache_equals_a_fresh_integration(xdg):
+    """The kept table is the one ``pseudoadiabat`` integrates (second route: integrate again)."""
+    import numpy as np
+
+    from parcelcast.thermo import moist
+
+    moist._table.cache_clear()
+    try:
+        kept = moist._table()
+        assert list(cache.cache_folder("tables").glob("pseudoadiabats.*.npy"))
+        moist._table.cache_clear()
+        read_back = moist._table()
+    finally:
+        moist._table.cache_clear()
+    fresh = moist.pseudoadiabat(moist._TABLE_T1000, 100000.0, np.exp(moist._TABLE_LNP), max_step=0.01)
+    assert np.array_equal(read_back, fresh) and np.array_equal(kept, fresh)

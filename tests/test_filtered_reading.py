@@ -127,3 +127,19 @@ def test_scan_names_equal_eccodes_read_message_by_message(name):
         finally:
             eccodes.codes_grib_multi_support_off()
     assert grib.scan_messages(data_file(name)).messages == expected
+
+
+def test_standardise_reads_no_values_so_a_one_level_read_decodes_that_level_only():
+    """cfgrib's groups stay lazy through ``coordinates.standardise`` (a scalar GRIB valid
+    time becomes a dimension only after the cut to the levels used, since xarray reads
+    every value to add one): the 850 hPa read holds one level of each field in memory."""
+    from parcelcast.io import coords
+
+    path = data_file(GFS)
+    groups = grib.open_grib(path, ADVECT)
+    upper = [coords.standardise(g, path) for g in groups.upper]
+    assert not any(var.variable._in_memory for g in upper for var in g.data_vars.values())
+    assert all(g["time"].ndim == 0 for g in upper)  # the GRIB valid time, still scalar
+    ds = open_analysis(path, roles=ADVECT, levels=85_000.0)
+    assert dict(ds["temperature"].sizes) == {"time": 1, "level": 1, "lat": 73, "lon": 144}
+    assert ds["time"].values[0] == np.datetime64("2011-10-11T00:00", "ns")

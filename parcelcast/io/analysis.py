@@ -224,7 +224,7 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
             raw_vars[role_name] = var
     raw_vars = _only_levels(raw_vars, levels)
     for role_name, var in raw_vars.items():
-        found[role_name] = _to_canonical(var, ROLES[role_name], path)
+        found[role_name] = _to_canonical(coordinates.time_as_dimension(var), ROLES[role_name], path)
     for role_name, name in overrides.items():
         if role_name in wanted and role_name not in found:
             raise VariableNotFoundError(role_name, str(path), raw_names,

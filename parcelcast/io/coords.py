@@ -171,8 +171,9 @@ def _standardise_time(ds: xr.Dataset, path: Path) -> xr.Dataset:
         if valid.ndim == 0:
             if "time" in ds.dims:
                 raise GridError(f"{path}: several reference times with one valid time")
-            ds = ds.drop_vars([c for c in ("time", "step", "valid_time") if c in ds.coords])
-            return ds.expand_dims(time=[valid.values])
+            # a scalar time: made a dimension by time_as_dimension once the levels are cut
+            ds = ds.drop_vars([c for c in ("time", "step") if c in ds.coords])
+            return ds.rename({"valid_time": "time"})
         if valid.ndim == 1:
             dim = valid.dims[0]
             values = valid.values
@@ -204,9 +205,18 @@ def _standardise_time(ds: xr.Dataset, path: Path) -> xr.Dataset:
     if missing:
         raise ImplausibleValuesError("time coordinate", str(path),
                                      f"{missing} time(s) missing (NaT); every field needs its time")
-    if ds["time"].ndim == 0:
-        ds = ds.expand_dims("time")
-    return ds
+    return ds  # a scalar time stays scalar here: see time_as_dimension
+
+
+def time_as_dimension(var: xr.DataArray) -> xr.DataArray:
+    """``var`` with a scalar ``time`` coordinate made a dimension of length 1.
+
+    Kept apart from :func:`standardise` because xarray reads every value of a lazily
+    opened variable to add a dimension: called once the variable is cut to the levels used.
+    """
+    if "time" in var.coords and "time" not in var.dims:
+        return var.expand_dims("time")
+    return var
 
 
 def _standardise_member(ds: xr.Dataset) -> xr.Dataset:

@@ -17,7 +17,7 @@ is conserved along our adiabats to within about 0.2 K from 1000 to 300 hPa (see 
 
 :func:`pseudoadiabat_lookup` gives the same curves (within 0.01 K) by bilinear
 interpolation in a table built once from :func:`pseudoadiabat`; the parcel kernel
-uses it (through the same compiled lookup) because it needs no integration per parcel.
+uses it (through the same lookup loop) because it needs no integration per parcel.
 """
 
 from __future__ import annotations
@@ -189,23 +189,35 @@ _TABLE_LNP = np.arange(np.log(110000.0), np.log(400.0) - 1e-9, -_TABLE_DLNP)
 
 @functools.lru_cache(maxsize=1)
 def _table():
-    """Pseudo-adiabats on the grid (n_curves, n_lnp), built once by :func:`pseudoadiabat` (RK4)."""
-    return pseudoadiabat(_TABLE_T1000, 100000.0, np.exp(_TABLE_LNP), max_step=0.01)
+    """Pseudo-adiabats on the grid (n_curves, n_lnp), built by :func:`pseudoadiabat` (RK4)
+    once per installation: kept in the cache folder (``cache.cached_array``, about 0.1 s to
+    build, a few ms to read), under a hash of this module and the constants."""
+    from pathlib import Path
+
+    from parcelcast.cache import cached_array
+    from parcelcast.thermo import constants
+
+    def build():
+        return pseudoadiabat(_TABLE_T1000, 100000.0, np.exp(_TABLE_LNP), max_step=0.01)
+
+    sources = [Path(__file__), Path(constants.__file__), Path(constants.__file__).parents[1] / "constants.py"]
+    return cached_array("pseudoadiabats", sources, build, (_TABLE_T1000.size, _TABLE_LNP.size))
 
 
 def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     """Like :func:`pseudoadiabat`, by bilinear interpolation in a table of pseudo-adiabats.
 
-    The table (built once per process, about 0.1 s) holds the curves through
+    The table (built once and kept in the cache folder, about 0.1 s) holds the curves through
     180-330 K at 1000 hPa every 0.2 K, on ln p steps of 0.01 from 1100 to 4 hPa,
     integrated by :func:`pseudoadiabat`.  Interpolation error is below 0.01 K
     (tested); points outside the table give NaN.  The lookup (bisection for the curve
-    through the start, then bilinear interpolation) is a compiled loop shared with the
-    parcel code (:mod:`parcelcast.thermo._parcel_kernel`, numba).
+    through the start, then bilinear interpolation) is a loop shared with the parcel code
+    (:mod:`parcelcast.thermo._parcel_loops`; compiled for many curves, see
+    :func:`parcelcast.thermo.parcel.column_loops`).
 
     Parameters and returns as in :func:`pseudoadiabat`.
     """
-    from parcelcast.thermo._parcel_kernel import pseudoadiabat_lookup_columns
+    from parcelcast.thermo.parcel import column_loops
 
     t0 = np.asarray(temperature_start, dtype=np.float64)
     p0 = np.asarray(pressure_start, dtype=np.float64)
@@ -217,5 +229,6 @@ def pseudoadiabat_lookup(temperature_start, pressure_start, pressure):
     p2 = np.array(plev.reshape(1, nlev) if plev.ndim == 1 else np.broadcast_to(plev, shape + (nlev,)),
                   order="C").reshape(-1, nlev)
     out = np.empty((int(np.prod(shape)), nlev))
-    pseudoadiabat_lookup_columns(_table(), _TABLE_LNP[0], _TABLE_DLNP, flat(t0), flat(p0), p2, out)
+    loops = column_loops(out.shape[0])
+    loops.pseudoadiabat_lookup_columns(_table(), _TABLE_LNP[0], _TABLE_DLNP, flat(t0), flat(p0), p2, out)
     return out.reshape(shape + (nlev,))

@@ -3,9 +3,10 @@
 Float64 SI arrays, any number of columns: levels on the last axis, shape
 ``(..., nlev)``, ordered from the surface upward (pressure decreasing).  The
 per-level fields come from the public numpy functions (mixing ratio, theta_E,
-LCL); the loops over levels are compiled with numba in
-:mod:`parcelcast.thermo._parcel_kernel` (imported on first use), the same code for
-one profile and for many columns.  Three parcels are defined:
+LCL); the loops over levels are :mod:`parcelcast.thermo._parcel_loops`, run as plain
+Python for a few columns and compiled with numba (:mod:`parcelcast.thermo._parcel_kernel`,
+imported on first use) for ``COMPILED_FROM_COLUMNS`` columns or more: one source, the
+same answers to round-off (tested).  Three parcels are defined:
 
 ``"surface"``
     The lowest valid level of the column.
@@ -33,6 +34,8 @@ Without an LFC, CAPE = CIN = 0 and LFC/EL are NaN.
 
 from __future__ import annotations
 
+import functools
+import types
 from dataclasses import dataclass
 
 import numpy as np
@@ -83,17 +86,40 @@ class ParcelResult:
     buoyancy: np.ndarray
 
 
-_KERNEL = None
+#: from this many columns on, the compiled loops; below, plain Python: loading the compiled
+#: ones (numba's start and its cache) takes about 0.6 s once per process, the Python loops
+#: about 0.5 ms per column of 26 levels and three parcels
+COMPILED_FROM_COLUMNS = 200
 
 
-def _kernel():
-    """The compiled loops (numba), imported on first use so that importing the package stays light."""
-    global _KERNEL
-    if _KERNEL is None:
+def column_loops(ncol: int):
+    """The column loops for ``ncol`` columns: the compiled ones (numba) for many, else
+    :mod:`~parcelcast.thermo._parcel_loops` run by the interpreter with numba's arithmetic
+    (see :func:`_interpreted`).  Either way a namespace of the same functions."""
+    if ncol >= COMPILED_FROM_COLUMNS:
         from parcelcast.thermo import _parcel_kernel
 
-        _KERNEL = _parcel_kernel
-    return _KERNEL
+        return _parcel_kernel
+    return _interpreted()
+
+
+@functools.lru_cache(maxsize=1)
+def _interpreted():
+    """The public loops of ``_parcel_loops`` as Python, each called with its float arguments
+    made numpy scalars and floating-point warnings silenced, so that the arithmetic is
+    numba's ``error_model="numpy"`` (x/0 gives inf or NaN, log 0 gives -inf, no warning)."""
+    from parcelcast.thermo import _parcel_loops
+
+    def ieee(loop):
+        def run(*args):
+            with np.errstate(all="ignore"):
+                return loop(*(np.float64(a) if isinstance(a, float) else a for a in args))
+
+        return run
+
+    return types.SimpleNamespace(**{name: ieee(getattr(_parcel_loops, name)) for name in
+                                    ("interpolate_columns", "parcel_starts", "pseudoadiabat_lookup_columns",
+                                     "lift_columns")})
 
 
 def interpolate_at_pressure(pressure, values, target):
@@ -116,7 +142,7 @@ def interpolate_at_pressure(pressure, values, target):
     p2 = np.array(p.reshape(1, n) if p.ndim == 1 else np.broadcast_to(p, v.shape), order="C").reshape(-1, n)
     tgt = np.array(np.broadcast_to(np.asarray(target, dtype=np.float64), lead), order="C").reshape(-1)
     out = np.empty(tgt.size)
-    _kernel().interpolate_columns(p2, np.array(v, order="C").reshape(-1, n), tgt, out)
+    column_loops(tgt.size).interpolate_columns(p2, np.array(v, order="C").reshape(-1, n), tgt, out)
     return out.reshape(lead)
 
 
@@ -168,8 +194,8 @@ def _starts(cols, kinds, ml_depth, mu_depth):
     shape = (len(kinds), cols.t.shape[0])
     p0, t0, x0 = np.empty(shape), np.empty(shape), np.empty(shape)
     idx = np.empty(shape, dtype=np.int64)
-    _kernel().parcel_starts(cols.p, cols.t, cols.td, cols.r, the, cols.valid, codes, P0, KAPPA, EPSILON,
-                            float(ml_depth), float(mu_depth), p0, t0, x0, idx)
+    column_loops(cols.t.shape[0]).parcel_starts(cols.p, cols.t, cols.td, cols.r, the, cols.valid, codes, P0,
+                                                KAPPA, EPSILON, float(ml_depth), float(mu_depth), p0, t0, x0, idx)
     td0 = x0
     for m, kind in enumerate(kinds):
         if kind == "mixed_layer":  # x0 holds the vapour pressure of the mean mixing ratio
@@ -220,9 +246,9 @@ def lift_parcel(pressure, temperature, dewpoint, parcel="surface", surface_press
 
     Notes
     -----
-    The column loops are compiled with numba (:mod:`parcelcast.thermo._parcel_kernel`,
-    compiled or loaded from the cache on the first call); one profile and many columns
-    take the same code path.
+    The column loops run as Python for fewer than ``COMPILED_FROM_COLUMNS`` columns, else
+    compiled with numba (:mod:`parcelcast.thermo._parcel_kernel`, compiled or loaded from
+    the cache on the first such call); the same source, the same answers to round-off.
 
     References
     ----------
@@ -274,10 +300,11 @@ def _lift(cols, p0, t0, td0, idx, method, max_step):
     out = {name: np.empty(shape) for name in ("cape", "cin", "lfc_pressure", "el_pressure", "lifted_index")}
     tp, b = np.empty(full), np.empty(full)
     a, bb, c = _MAGNUS[("wmo", "water")]
-    _kernel().lift_columns(cols.p, cols.t, cols.r, cols.valid, p0, t0, idx, p_lcl, t_lcl, r0, expo,
-                           method == "table", _table(), _TABLE_LNP[0], _TABLE_DLNP, t_moist, a, bb, c, T_ZERO_C,
-                           EPSILON, RD, 50000.0, out["cape"], out["cin"], out["lfc_pressure"],
-                           out["el_pressure"], out["lifted_index"], tp, b)
+    loops = column_loops(cols.t.shape[0])
+    loops.lift_columns(cols.p, cols.t, cols.r, cols.valid, p0, t0, idx, p_lcl, t_lcl, r0, expo,
+                       method == "table", _table(), _TABLE_LNP[0], _TABLE_DLNP, t_moist, a, bb, c, T_ZERO_C,
+                       EPSILON, RD, 50000.0, out["cape"], out["cin"], out["lfc_pressure"],
+                       out["el_pressure"], out["lifted_index"], tp, b)
     out.update(lcl_pressure=p_lcl, lcl_temperature=t_lcl, start_pressure=p0, start_temperature=t0,
                start_dewpoint=td0, parcel_temperature=tp, buoyancy=b)
     return out

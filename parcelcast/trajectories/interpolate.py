@@ -460,18 +460,20 @@ _NO_FIELD = np.empty((0, 0, 0, 0))
 
 
 class CornerCache:
-    """Grid-corner values of the cell each parcel was last sampled in (compiled path).
+    """Grid-corner values of the cell each parcel was last sampled in (compiled path), and
+    the number of :func:`wind_tendency` calls made with it (which path they take).
 
     One per run of :func:`wind_tendency` calls on the same parcels (same number, same
-    order) and the same pair of time slices; :meth:`use` starts afresh when the number or
-    ``tag`` (naming the pair, e.g. the analysis interval) changes.  The caller must give a
-    new tag if the parcels change but their number does not (``integrate`` never does:
+    order) and the same pair of time slices; :meth:`use` starts the corners afresh when the
+    number or ``tag`` (naming the pair, e.g. the analysis interval) changes.  The caller must
+    give a new tag if the parcels change but their number does not (``integrate`` never does:
     its active set only shrinks).  Cached values are exact copies of the fields.
     """
 
     def __init__(self):
         self.tag = None
         self.omega = None
+        self.calls = 0
         self.key = np.full((2, 0), -1, dtype=np.int64)
         self.val = np.empty((2, 0, 4, 2, 3))
 
@@ -483,6 +485,16 @@ class CornerCache:
         return self
 
 
+#: Which path :func:`wind_tendency` takes.  The compiled kernel costs about 0.7 s to load
+#: (numba's start and its cache, once per process), then some 10 us a call; the numpy
+#: functions above cost about 0.1 ms a call for a few parcels and nothing to load.  So a run
+#: of fewer than ``COMPILED_FROM_PARCELS`` parcels takes numpy for its first
+#: ``NUMPY_CALLS`` calls (a day's trajectory on a 2.5-degree grid needs a few hundred) and
+#: the kernel after; the two agree to round-off (``tests/test_wind_tendency_paths.py``).
+COMPILED_FROM_PARCELS = 64
+NUMPY_CALLS = 4000
+
+
 def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt: float,
                   omega: bool = False, radius: float | None = None,
                   cache: CornerCache | None = None):
@@ -491,8 +503,9 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     Equals, to round-off, ``locate`` at ``to_lat_lon(x)`` followed by
     ``tangent(x, blend(sample_wind(loc, a...), sample_wind(loc, b...), wt)) / radius`` and
     ``blend(sample_scalar(loc, a["omega"]), sample_scalar(loc, b["omega"]), wt)``; the slice
-    whose weight is 0 is not read.  The kernel is ``_kernel.wind_tendency`` (numba,
-    imported here on first use); many parcels are shared among numba's number of threads
+    whose weight is 0 is not read.  A few parcels take those numpy functions (see
+    ``COMPILED_FROM_PARCELS``), others the kernel ``_kernel.wind_tendency`` (numba, imported
+    here on first use); many parcels are shared among numba's number of threads
     (``_threads.share_parcels``), with results identical to one thread.
 
     Parameters
@@ -510,8 +523,9 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     radius : float, optional
         The Earth's radius (m); default ``geom.radius``.
     cache : CornerCache, optional
-        Corner values kept between calls on the same parcels and slices (see
-        :class:`CornerCache`); without it every corner is read.
+        Corner values kept between calls on the same parcels and slices, and the count of
+        calls (see :class:`CornerCache`); without it every corner is read, and a few
+        parcels take the numpy functions.
 
     Returns
     -------
@@ -522,20 +536,47 @@ def wind_tendency(geom: GridGeometry, x, pressure, member, a: dict, b: dict, wt:
     outside, below, above : ndarray (n,) bool
         As the attributes of :class:`Location`.
     """
-    from parcelcast.trajectories._kernel import wind_tendency as kernel
-    from parcelcast.trajectories._threads import share_parcels
-
     radius = geom.radius if radius is None else radius
-
     x = np.ascontiguousarray(x, dtype=np.float64)
     n = x.shape[0]
-    use_p = pressure is not None and geom.nlev > 1
-    p = np.ascontiguousarray(pressure, dtype=np.float64) if use_p else np.ones(n)
-    mem = np.ascontiguousarray(member, dtype=np.intp)
     if cache is None:
         cache = CornerCache().use(n, None)
     elif cache.key.shape[1] != n:
         raise ValueError("corner cache built for another number of parcels")
+    cache.calls += 1
+    if n < COMPILED_FROM_PARCELS and cache.calls <= NUMPY_CALLS:
+        return _numpy_tendency(geom, x, pressure, member, a, b, wt, omega, radius)
+    return _compiled_tendency(geom, x, pressure, member, a, b, wt, omega, radius, cache)
+
+
+def _numpy_tendency(geom, x, pressure, member, a, b, wt, omega, radius):
+    """:func:`wind_tendency` by the numpy functions of this module."""
+    lat, lon = to_lat_lon(x)
+    loc = locate(geom, lat, lon, pressure, member)
+
+    def at(d):  # wind and omega of one time slice
+        w = sample_wind(loc, d["u"], d["v"])
+        return w, (sample_scalar(loc, d["omega"]) if omega else np.zeros(x.shape[0]))
+
+    if wt <= 0.0:
+        w, dz = at(a)
+    elif wt >= 1.0:
+        w, dz = at(b)
+    else:
+        (wa, oa), (wb, ob) = at(a), at(b)
+        w, dz = blend(wa, wb, wt), blend(oa, ob, wt)
+    return tangent(x, w) / radius, dz, loc.outside, loc.below, loc.above
+
+
+def _compiled_tendency(geom, x, pressure, member, a, b, wt, omega, radius, cache):
+    """:func:`wind_tendency` by the compiled kernel, parcels shared among threads."""
+    from parcelcast.trajectories._kernel import wind_tendency as kernel
+    from parcelcast.trajectories._threads import share_parcels
+
+    n = x.shape[0]
+    use_p = pressure is not None and geom.nlev > 1
+    p = np.ascontiguousarray(pressure, dtype=np.float64) if use_p else np.ones(n)
+    mem = np.ascontiguousarray(member, dtype=np.intp)
     if cache.omega != omega:  # cached cells lack omega (or carry it needlessly)
         cache.key[:] = -1
         cache.omega = omega
