@@ -71,9 +71,11 @@ def write_record(path: Path, days: float, dlat: float, levels_hpa, step_h: int =
         for k in range(ntime):
             seconds = k * step_h * 3600.0
             wave = np.cos(phi) ** 2 * np.sin(3 * (lam - c * seconds))
+            # a slow local change that stays plausible over any record length (an annual course)
+            seasonal = 10.0 * np.sin(2.0 * np.pi * seconds / (365.25 * 86400.0))
             nc["time"][k] = k * step_h
             for j, p in enumerate(levels):
-                fields["t"][k, j] = 260.0 + 8.0 * wave + (p - 850.0) * 0.01 + 1e-5 * seconds
+                fields["t"][k, j] = 260.0 + 8.0 * wave + (p - 850.0) * 0.01 + seasonal
                 fields["u"][k, j] = u
                 fields["v"][k, j] = 2.0 * np.sin(lam) * np.cos(phi)
                 fields["w"][k, j] = 0.2 * np.sin(2 * lam) * np.cos(phi) * np.cos(seconds / 13751.0)

@@ -13,7 +13,8 @@ against grid size (``bench_advection.py``); trajectories against the scipy basel
 thread and all threads, and the cost against the number of parcels
 (``bench_trajectories.py``); CAPE/CIN against the scipy baseline (``bench_profile.py``);
 the climate run's throughput and memory (``bench_climate.py``) and the commands' latency
-(``bench_latency.py``) when those files exist.
+(``bench_latency.py``) and the briefing against ``advect --at`` (``bench_brief.py``) when
+those files exist.
 """
 
 from __future__ import annotations
@@ -44,15 +45,18 @@ BENCHMARKS = (
      "the climate split: windows and grid points per second, peak memory"),
     ("latency", "bench_latency.py", [],
      "advect / profile / track on real files as ratios to the import floor"),
+    ("brief", "bench_brief.py", [],
+     "the morning briefing on the real files against one advect --at call on the same file"),
 )
-OPTIONAL = {"climate", "latency"}  # written by other parts of the project; run when present
+OPTIONAL = {"climate", "latency", "brief"}  # written by other parts of the project; run when present
 #: arguments of each benchmark for ``--quick``
 QUICK = {"advection": ["--repeats", "3"], "trajectories": ["--repeats", "1"],
          "cape": ["--columns", "1000", "--baseline-columns", "5", "--no-compile-time"],
-         "climate": ["--quick"], "latency": ["--repeat", "1", "--no-cold"]}
+         "climate": ["--quick"], "latency": ["--repeat", "1", "--no-cold"], "brief": ["--repeat", "1"]}
 
 #: lines of a benchmark's output repeated in the summary at the top of the results
-HEADLINE_WORDS = ("ratio", "goal", "parcel-steps/s", "speed-up", "per second", "peak")
+HEADLINE_WORDS = ("ratio", "goal", "parcel-steps/s", "speed-up", "per second", "peak", "brief /",
+                  "x ok", "x over")
 
 
 def machine_description() -> list[str]:

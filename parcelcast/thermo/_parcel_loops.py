@@ -25,21 +25,27 @@ import math
 import numpy as np
 
 #: functions the compiled version inlines into their callers
-INLINE = ("_interp_lnp", "_bracket", "_at")
+INLINE = ("_upper_index", "_interp_lnp", "_bracket", "_at")
 
 SURFACE, MIXED_LAYER, MOST_UNSTABLE = 0, 1, 2
 
 
-def _interp_lnp(p, v, target):
-    """Linear-in-ln p value of v at target (p decreasing); NaN outside or next to NaN."""
+def _upper_index(p, target):
+    """The index j in 1..n-1 of the level pair ``p[j - 1] >= target >= p[j]`` around
+    ``target`` when it lies inside the column (p decreasing, at least two levels)."""
     n = p.shape[0]
-    if n < 2:
-        return np.nan
     j = 0
     for k in range(n):
         if p[k] >= target:
             j += 1
-    j = min(max(j, 1), n - 1)
+    return min(max(j, 1), n - 1)
+
+
+def _interp_lnp(p, v, target):
+    """Linear-in-ln p value of v at target (p decreasing); NaN outside or next to NaN."""
+    if p.shape[0] < 2:
+        return np.nan
+    j = _upper_index(p, target)
     p0 = p[j - 1]
     p1 = p[j]
     if not (target <= p0 and target >= p1):
@@ -65,11 +71,7 @@ def _layer_mean(p, f, ok, p_bottom, depth):
     # f at the top of the layer, linear in ln p (NaN if a neighbour is not ok)
     f_top = np.nan
     if n >= 2:
-        j = 0
-        for k in range(n):
-            if p[k] >= top:
-                j += 1
-        j = min(max(j, 1), n - 1)
+        j = _upper_index(p, top)
         pa = p[j - 1]
         pb = p[j]
         if top <= pa and top >= pb:
