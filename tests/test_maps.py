@@ -200,3 +200,25 @@ def test_graticule_spacing_gives_a_handful_of_lines():
     for span in (3.0, 20.0, 30.0, 75.0, 180.0, 360.0):
         step = step_for(span)
         assert span / step <= MAX_LINES and span / step >= 2
+
+
+def test_a_path_that_stops_short_says_where_and_why_on_the_map():
+    """A westerly solid-body flow on a grid cut at 10 W: the back trajectory from 50 N 5 E
+    leaves the grid before 24 h (the westerly brings the air from beyond the cut)."""
+    from parcelcast.render.trajectory_maps import trajectory_map
+    from parcelcast.trajectories import compute_trajectories
+    from parcelcast.trajectories.analytic import solid_body_dataset
+    from parcelcast.trajectories.completeness import ENDED_BECAUSE, hours_covered
+    from parcelcast.units import Q_
+
+    ds = solid_body_dataset(hours=24, step_hours=6, resolution=2.0, levels_hpa=(850.0,))
+    ds = ds.sel(lon=slice(-10.0, 30.0))
+    paths = compute_trajectories(ds, 50.0, 5.0, Q_(850, "hPa"), Q_(-24, "h"), members=3)
+    central = int(np.argmax(paths["central"].values))
+    covered = hours_covered(paths)[central]
+    assert covered < 24.0 and paths["status_name"].values[central] == "left_domain"
+    drawn = trajectory_map(paths, station=("Harbour Point", 50.0, 5.0))
+    texts = [t.get_text() for t in drawn["marks"] if hasattr(t, "get_text")]
+    assert f"  ends at -{covered:.0f} h: {ENDED_BECAUSE['left_domain']}" in texts
+    legend = [t.get_text() for t in drawn["axes"].get_legend().get_texts()]
+    assert any(t.startswith("X: the central path ended") for t in legend)

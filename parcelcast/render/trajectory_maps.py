@@ -113,6 +113,7 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
         lo, hi = mid - 25.0, mid + 25.0
     norm = Normalize(vmin=lo, vmax=hi)
     lines, marks, handles = [], [], []
+    ended_early = False
     backward = groups[0][1].attrs.get("direction", "backward") == "backward"
     for g, (label, part) in enumerate(groups):
         marker = _MARKERS[g % len(_MARKERS)]
@@ -140,6 +141,9 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
             lines.append(collection)
             if central:
                 marks += _time_marks(ax, part, k, marker)
+                stopped = _end_mark(ax, part, k, backward)
+                marks += stopped
+                ended_early |= bool(stopped)
         handles.append(Line2D([], [], color="black", linewidth=3.0, marker=marker, markersize=7,
                               markerfacecolor="white", markeredgecolor="black",
                               label=f"{label}: central path bold, members thin, marks every "
@@ -156,6 +160,10 @@ def trajectory_map(paths, path=None, station=None, area=None, title=None, source
                            orientation="vertical")
         bar.set_label("parcel pressure (hPa)")
         bar.ax.invert_yaxis()  # low pressure (high up) at the top
+    if ended_early:
+        handles.append(Line2D([], [], color="none", marker="X", markersize=8, markerfacecolor="black",
+                              markeredgecolor="white",
+                              label="X: the central path ended before the hours asked for (why, beside it)"))
     handles.append(Line2D([], [], color="none", label=DISCLAIMER_SHORT))
     ax.legend(handles=handles, loc="upper center", bbox_to_anchor=(0.5, -0.06), fontsize=8,
               frameon=False, ncol=1)
@@ -185,4 +193,31 @@ def _time_marks(ax, part, k, marker="o"):
     for h, xi, yi in zip(hours[at], x, y):
         drawn.append(ax.text(xi, yi, f" {h:+.0f} h", fontsize=7, zorder=7, va="bottom",
                              path_effects=halo))
+    return drawn
+
+
+def _end_mark(ax, part, k, backward: bool):
+    """A cross and a few words where trajectory ``k`` stopped short of the hours asked for
+    (none when it covered them): how many hours it covered and why it ended."""
+    from matplotlib import patheffects
+
+    from parcelcast.trajectories.completeness import ENDED_BECAUSE, hours_covered
+
+    requested = part.attrs.get("hours_requested")
+    covered = float(hours_covered(part)[k])
+    if requested is None or covered >= float(requested) - 1e-6:
+        return []
+    last = max(int(part["row_size"].values[k]) - 1, 0)
+    lon = _unwrapped(part["lon"].values[k])[last]
+    lat = part["lat"].values[k][last]
+    if not (np.isfinite(lon) and np.isfinite(lat)):
+        return []
+    x, y = project_points(ax, lon, lat)
+    status = str(part["status_name"].values[k])
+    hours = f"{'-' if backward else '+'}{covered:.0f} h"
+    drawn = ax.plot(x, y, marker="X", markersize=10, markerfacecolor="black",
+                    markeredgecolor="white", zorder=7, linestyle="none")
+    drawn.append(ax.text(x, y, f"  ends at {hours}: {ENDED_BECAUSE.get(status, status)}",
+                         fontsize=8, fontweight="bold", zorder=7, va="top",
+                         path_effects=[patheffects.withStroke(linewidth=2.5, foreground="white")]))
     return drawn
