@@ -90,6 +90,17 @@ def outcome(reader_name: str, reader, *args, names=(), **kwargs):
         return None, exc
 
 
+def read_bytes_as_file(path, data: bytes, reader_name: str, reader, check=None, **kwargs):
+    """Write ``data`` to ``path`` and read it with ``reader(path, **kwargs)`` under the rules
+    of :func:`outcome` (the error names the file); ``check(result)`` when it was read.
+    Returns the result, or None when it was refused."""
+    path.write_bytes(data)
+    result, _ = outcome(reader_name, reader, path, names=[path], **kwargs)
+    if result is not None and check is not None:
+        check(result)
+    return result
+
+
 # ------------------------------------------------------------------------- canonical dataset
 _CANONICAL_ORDER = ("member", "time", "level", "lat", "lon")
 

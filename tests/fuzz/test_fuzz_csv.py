@@ -15,7 +15,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from fuzz_contract import check_profile, check_station_series, fuzz_settings, outcome
+from fuzz_contract import check_profile, check_station_series, fuzz_settings, read_bytes_as_file
 from parcelcast.io.station import read_station_series
 from parcelcast.profiles.csv import read_profile_csv
 
@@ -111,21 +111,13 @@ station_header_pool = st.sampled_from(["time", "Time ", "TIME", "time_utc", "tem
 @fuzz_settings(1500)
 @given(data=damaged_table(PROFILE_HEADER, PROFILE_ROWS, profile_header_pool, cell))
 def test_profile_csv_damaged(scratch, data):
-    path = scratch / "sounding.csv"
-    path.write_bytes(data)
-    profile, _ = outcome("profile CSV", read_profile_csv, path, names=[path])
-    if profile is not None:
-        check_profile(profile)
+    read_bytes_as_file(scratch / "sounding.csv", data, "profile CSV", read_profile_csv, check_profile)
 
 
 @fuzz_settings(300)
 @given(data=st.binary(max_size=400))
 def test_profile_csv_random_bytes(scratch, data):
-    path = scratch / "bytes.csv"
-    path.write_bytes(data)
-    profile, _ = outcome("profile CSV", read_profile_csv, path, names=[path])
-    if profile is not None:
-        check_profile(profile)
+    read_bytes_as_file(scratch / "bytes.csv", data, "profile CSV", read_profile_csv, check_profile)
 
 
 station_cell = st.one_of(cell, st.sampled_from(TIMES))
@@ -134,18 +126,10 @@ station_cell = st.one_of(cell, st.sampled_from(TIMES))
 @fuzz_settings(1500)
 @given(data=damaged_table(STATION_HEADER, STATION_ROWS, station_header_pool, station_cell))
 def test_station_csv_damaged(scratch, data):
-    path = scratch / "station.csv"
-    path.write_bytes(data)
-    series, _ = outcome("station CSV", read_station_series, path, names=[path])
-    if series is not None:
-        check_station_series(series)
+    read_bytes_as_file(scratch / "station.csv", data, "station CSV", read_station_series, check_station_series)
 
 
 @fuzz_settings(300)
 @given(data=st.binary(max_size=400))
 def test_station_csv_random_bytes(scratch, data):
-    path = scratch / "bytes.csv"
-    path.write_bytes(data)
-    series, _ = outcome("station CSV", read_station_series, path, names=[path])
-    if series is not None:
-        check_station_series(series)
+    read_bytes_as_file(scratch / "bytes.csv", data, "station CSV", read_station_series, check_station_series)

@@ -19,7 +19,7 @@ import xarray as xr
 from hypothesis import given
 from hypothesis import strategies as st
 
-from fuzz_contract import check_canonical_dataset, fuzz_settings, outcome
+from fuzz_contract import check_canonical_dataset, fuzz_settings, outcome, read_bytes_as_file
 from parcelcast.io.analysis import open_analysis
 from parcelcast.io.netcdf_classic import check_complete
 
@@ -232,11 +232,7 @@ def test_netcdf_damaged_bytes(scratch, fmt, cut, edits):
         data[at:at + len(new)] = new
     if cut < 0.5:  # half the inputs cut short somewhere
         data = data[: int(cut * 2 * len(data))]
-    path = fresh_path(scratch)
-    path.write_bytes(bytes(data))
-    ds, _ = outcome("NetCDF", open_analysis, path, names=[path])
-    if ds is not None:
-        check_canonical_dataset(ds)
+    read_bytes_as_file(fresh_path(scratch), bytes(data), "NetCDF", open_analysis, check_canonical_dataset)
 
 
 @fuzz_settings(600)

@@ -18,7 +18,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from fuzz_contract import fuzz_settings, outcome
+from fuzz_contract import fuzz_settings, read_bytes_as_file
 from parcelcast.budget import WINDS
 from parcelcast.review import read_case
 
@@ -138,18 +138,10 @@ def check_case(case) -> None:
 @fuzz_settings(1500)
 @given(data=damaged_case())
 def test_case_file_wrong_values(scratch, data):
-    path = scratch / "case.toml"
-    path.write_bytes(data)
-    case, _ = outcome("case TOML", read_case, path, names=[path])
-    if case is not None:
-        check_case(case)
+    read_bytes_as_file(scratch / "case.toml", data, "case TOML", read_case, check_case)
 
 
 @fuzz_settings(600)
 @given(data=garbled_text() | st.binary(max_size=300))
 def test_case_file_garbled(scratch, data):
-    path = scratch / "case.toml"
-    path.write_bytes(data)
-    case, _ = outcome("case TOML", read_case, path, names=[path])
-    if case is not None:
-        check_case(case)
+    read_bytes_as_file(scratch / "case.toml", data, "case TOML", read_case, check_case)
