@@ -124,3 +124,13 @@ def test_missing_temperature_column_lists_columns(tmp_path):
 def test_missing_file(tmp_path):
     with pytest.raises(ParcelcastError, match="no such file"):
         read_station_series(tmp_path / "nowhere.csv")
+
+
+def test_a_time_beyond_what_nanoseconds_hold_is_refused(tmp_path):
+    """datetime64[ns] ends on 2262-04-11 (numpy's documented span of the ns unit); a later
+    year must be refused, not wrapped round into the past (found by the fuzz suite)."""
+    path = tmp_path / "series.csv"
+    path.write_text("time,temperature_K\n2019-03-01T00:00Z,280.0\n2262-04-12,281.0\n")
+    with pytest.raises(ParcelcastError, match=r"row 3, column time: '2262-04-12' is outside") as err:
+        read_station_series(path)
+    assert str(path) in str(err.value)

@@ -84,9 +84,8 @@ def read_station_series(path) -> StationSeries:
     for row, text in enumerate(frame[columns["time"]], start=2):
         try:
             times.append(parse_utc(text))
-        except ParcelcastError:
-            raise InputFileError(path, f"row {row}, column time: not an ISO 8601 time such as "
-                                 "2017-01-01T12:00Z") from None
+        except ParcelcastError as exc:  # not a time, or a year out of range
+            raise InputFileError(path, f"row {row}, column time: {exc}") from None
     raw = frame[column].str.strip()
     values = np.full(len(raw), np.nan)
     for i, text in enumerate(raw):
