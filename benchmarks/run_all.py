@@ -13,8 +13,8 @@ against grid size (``bench_advection.py``); trajectories against the scipy basel
 thread and all threads, and the cost against the number of parcels
 (``bench_trajectories.py``); CAPE/CIN against the scipy baseline (``bench_profile.py``);
 the climate run's throughput and memory (``bench_climate.py``) and the commands' latency
-(``bench_latency.py``) and the briefing against ``advect --at`` (``bench_brief.py``) when
-those files exist.
+(``bench_latency.py``), the briefing against ``advect --at`` (``bench_brief.py``) and the
+peak memory of a one-level question (``bench_memory.py``) when those files exist.
 """
 
 from __future__ import annotations
@@ -47,12 +47,15 @@ BENCHMARKS = (
      "advect / profile / track on real files as ratios to the import floor"),
     ("brief", "bench_brief.py", [],
      "the morning briefing on the real files against one advect --at call on the same file"),
+    ("memory", "bench_memory.py", [],
+     "peak memory of a one-level question on a 500 MB 0.25-degree NetCDF file"),
 )
-OPTIONAL = {"climate", "latency", "brief"}  # written by other parts of the project; run when present
+OPTIONAL = {"climate", "latency", "brief", "memory"}  # written by other parts of the project; run when present
 #: arguments of each benchmark for ``--quick``
 QUICK = {"advection": ["--repeats", "3"], "trajectories": ["--repeats", "1"],
          "cape": ["--columns", "1000", "--baseline-columns", "5", "--no-compile-time"],
-         "climate": ["--quick"], "latency": ["--repeat", "1", "--no-cold"], "brief": ["--repeat", "1"]}
+         "climate": ["--quick"], "latency": ["--repeat", "1", "--no-cold"], "brief": ["--repeat", "1"],
+         "memory": []}
 
 #: lines of a benchmark's output repeated in the summary at the top of the results
 HEADLINE_WORDS = ("ratio", "goal", "parcel-steps/s", "speed-up", "per second", "peak", "brief /",

@@ -51,7 +51,8 @@ def run(args) -> int:
     roles = ("temperature", "u", "v", "geopotential") if args.wind == "actual" else ("temperature", "geopotential")
     roles += ("surface_pressure", "orography")  # to mask levels below the ground
     ds = open_analysis(args.files, dict(args.var), roles=roles_at_level(roles, args.level),
-                       levels=None if is_surface(args.level) else args.level * 100.0)  # that level only (Pa)
+                       levels=None if is_surface(args.level) else args.level * 100.0,  # that level only (Pa)
+                       time=args.time if args.time is not None else "latest")  # and that time
     require_valid_time(ds, "the advection is reported at the valid time of an analysis")
     fields = advection_on_level(ds, args.level, args.time, args.wind)
     fields.attrs["level"] = args.level

@@ -196,7 +196,8 @@ def run(args) -> int:
         from parcelcast.io.analysis import open_analysis
 
         lat, lon = args.at
-        ds = open_analysis(args.files, dict(args.var), roles=COLUMN_ROLES)
+        ds = open_analysis(args.files, dict(args.var), roles=COLUMN_ROLES,
+                           time=args.time if args.time is not None else "latest")
         profile = column_from_analysis(ds, lat, lon, args.time, args.humidity_over)
         result = analyse(profile, advective_change=args.advected_change)
         if {"temperature", "u", "v"} <= set(ds.data_vars):

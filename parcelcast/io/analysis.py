@@ -68,7 +68,7 @@ def detect_format(path: Path) -> str:
 
 
 def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
-                  allow_damaged: bool = False, chunks=None, levels=None) -> xr.Dataset:
+                  allow_damaged: bool = False, chunks=None, levels=None, time=None) -> xr.Dataset:
     """Open analysis files into one canonical dataset, combined along time.
 
     Parameters
@@ -86,6 +86,12 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
         Pressure levels (Pa) the caller will use.  Fields on levels are cut to these
         before any value is read, so memory follows the levels used, not the file's
         size; a field lacking one of them is kept whole (selection reports what exists).
+    time : ``"latest"`` or numpy.datetime64, optional
+        The one valid time the caller will use (``"latest"``: the file's last).  A single
+        NetCDF file is cut to it before values are read, like ``levels``, so a one-time
+        question on a long archive file reads one time; kept whole when a field lacks that time (the
+        selection then lists the times there are) and when several files are combined (the
+        combination checks every time).
     allow_damaged : bool
         A GRIB file in which some messages cannot be decoded is refused unless
         this is True (then the dataset's ``damaged`` attribute says what was lost).
@@ -108,10 +114,11 @@ def open_analysis(paths, overrides: dict[str, str] | None = None, roles=None,
     wanted = list(roles) if roles is not None else list(ROLES)
     files = expand_paths(paths)
     levels = None if levels is None else [float(p) for p in np.atleast_1d(levels)]
+    time = time if len(files) == 1 else None
     pieces = []
     with progress("opening analyses", total=len(files)) as advance:
         for path in files:
-            pieces.append(_open_one(path, overrides, wanted, allow_damaged, chunks, levels))
+            pieces.append(_open_one(path, overrides, wanted, allow_damaged, chunks, levels, time))
             advance()
     ds = pieces[0] if len(pieces) == 1 else _combine_along_time(pieces, files)
     ds.attrs["source_files"] = ";".join(str(p) for p in files)
@@ -164,11 +171,38 @@ def _only_levels(raw_vars: dict, levels) -> dict:
             for name, var in raw_vars.items()}
 
 
+def _only_time(raw_vars: dict, time) -> dict:
+    """The variables at one valid time only (``"latest"``, or a datetime64), cut before
+    any value is read.  All are left whole when one lacks that time (or, for the latest,
+    when their last times differ), so that time selection later lists the times there are."""
+    on_times = [name for name, var in raw_vars.items() if "time" in var.dims]
+    if time is None or not on_times:
+        return raw_vars
+    stamps = {name: np.asarray(raw_vars[name]["time"].values, dtype="datetime64[ns]")
+              for name in on_times}
+    if isinstance(time, str):  # "latest"
+        last = {stamps[name].max() for name in on_times}
+        if len(last) != 1:
+            return raw_vars
+        target = last.pop()
+    else:
+        target = np.datetime64(time, "ns")
+    index = {}
+    for name in on_times:
+        hit = np.flatnonzero(stamps[name] == target)
+        if hit.size != 1:
+            return raw_vars
+        index[name] = [int(hit[0])]  # a list: the time dimension stays
+    return {name: var.isel(time=index[name]) if name in index else var
+            for name, var in raw_vars.items()}
+
+
 #: a requested level matches a file's level within this (Pa); as selection.py's matching
 _LEVEL_TOLERANCE_PA = 1.0
 
 
-def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None) -> xr.Dataset:
+def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None,
+              time=None) -> xr.Dataset:
     fmt = detect_format(path)
     damaged = ""
     if fmt == "grib":
@@ -223,6 +257,8 @@ def _open_one(path: Path, overrides, wanted, allow_damaged, chunks, levels=None)
         if var is not None:
             raw_vars[role_name] = var
     raw_vars = _only_levels(raw_vars, levels)
+    if fmt != "grib":  # NetCDF's time is the valid time; GRIB's may be the reference time
+        raw_vars = _only_time(raw_vars, time)
     for role_name, var in raw_vars.items():
         found[role_name] = _to_canonical(coordinates.time_as_dimension(var), ROLES[role_name], path)
     for role_name, name in overrides.items():
