@@ -341,7 +341,9 @@ def advection_map(level_fields, path=None, station=None, area=None, ax=None, tit
              else level_fields.attrs.get("level", "surface"))  # no pressure level: the surface
     when = formatting.time_text(level_fields["time"].values) if "time" in level_fields.coords else ""
     wind = level_fields.attrs.get("wind", "actual")
-    head = title or f"Temperature advection at {level_label(level)} ({wind} wind), valid {when}"
+    where = (f"the {level_label(level)}" if isinstance(level, str)  # the 10-m wind, always analysed
+             else f"{level_label(level)} ({wind} wind)")
+    head = title or f"Temperature advection at {where}, valid {when}"
     ax.set_title(f"{head}\nisotherms \u00b0C every {interval}; barbs: {wind} wind in kt; "
                  f"source: {source_text(level_fields)}", fontsize=10)
     if path is not None:
