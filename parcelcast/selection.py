@@ -53,6 +53,12 @@ def level_label(level) -> str:
     return "surface (2-m temperature, 10-m wind)" if is_surface(level) else f"{level:g} hPa"
 
 
+def level_phrase(level) -> str:
+    """The level after "at" in a sentence: ``"850 hPa"``, or ``"the surface (2-m temperature,
+    10-m wind)"``."""
+    return f"the {level_label(level)}" if is_surface(level) else level_label(level)
+
+
 def level_json(level) -> dict:
     """``level`` and ``level_hPa`` for JSON output (``level_hPa`` null at the surface)."""
     if is_surface(level):

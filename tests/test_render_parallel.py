@@ -5,6 +5,7 @@ drawing: the machinery is what is tested; the real figures are tested in test_br
 from __future__ import annotations
 
 import os
+import sys
 
 import pytest
 
@@ -29,7 +30,7 @@ def test_results_come_back_in_order_from_other_processes():
         serial = here.draw(jobs)
     assert [value for value, _ in drawn] == [value for value, _ in serial] == [0, 1, 4, 9, 16]
     assert [value for value, _ in again] == [0, 1]
-    if os.cpu_count() and os.cpu_count() > 1 and hasattr(os, "fork"):
+    if sys.platform == "linux":  # where the drawing processes are forked
         assert all(pid != os.getpid() for _, pid in drawn)
     assert all(pid == os.getpid() for _, pid in serial)
 

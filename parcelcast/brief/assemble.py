@@ -330,12 +330,19 @@ def profile_entry(ds, config: BriefConfig, valid_time) -> dict:
 
 
 # --------------------------------------------------------------------------- cautions
+def entry_level(entry: dict):
+    """A level entry's level as the library takes it: hPa, or ``"surface"``."""
+    from parcelcast.selection import SURFACE
+
+    return SURFACE if entry["level_hPa"] is None else entry["level_hPa"]
+
+
 def level_name(entry: dict) -> str:
     """A level entry's level for people: ``"850 hPa"``, or the surface (2-m temperature,
     10-m wind)."""
     from parcelcast.selection import level_label
 
-    return level_label("surface" if entry["level_hPa"] is None else entry["level_hPa"])
+    return level_label(entry_level(entry))
 
 
 def _missing_warnings(brief: dict) -> list[str]:

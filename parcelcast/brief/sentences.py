@@ -7,24 +7,21 @@ the words and units of :mod:`parcelcast.formatting` (degC, knots, K/h, compass p
 from __future__ import annotations
 
 from parcelcast import formatting
-from parcelcast.brief.assemble import level_name
+from parcelcast.brief.assemble import entry_level
+from parcelcast.selection import level_phrase
 
 
 def level_sentence(level: dict) -> str:
     """``"At 850 hPa: cold advection of 0.31 K/h; 6.9 °C, wind 250° 30 kt."``"""
     if not level.get("available"):
-        return f"At {_at(level)} nothing could be computed: {level['reason']}."
+        return f"At {level_phrase(entry_level(level))} nothing could be computed: {level['reason']}."
     wind = formatting.MISSING
     if level["wind_speed_kt"] is not None:
         wind = ("calm" if round(level["wind_speed_kt"]) == 0 else
                 f"{level['wind_direction_deg']:03.0f}\u00b0 {level['wind_speed_kt']:.0f} kt")
     words = formatting.advection_words(level["advection_K_per_h"])
-    return (f"At {_at(level)}: {words}; temperature "
+    return (f"At {level_phrase(entry_level(level))}: {words}; temperature "
             f"{formatting.temperature_text(level['temperature_K'])}, wind {wind}.")
-
-
-def _at(level: dict) -> str:
-    return level_name(level) if level["level_hPa"] is not None else f"the {level_name(level)}"
 
 
 def trajectory_sentence(traj: dict) -> str:

@@ -13,8 +13,9 @@ import json
 from pathlib import Path
 
 from parcelcast import formatting
-from parcelcast.brief.assemble import level_name
+from parcelcast.brief.assemble import entry_level, level_name
 from parcelcast.io.atomic import atomic_folder, write_text
+from parcelcast.selection import level_phrase
 
 FILES = {"html": "brief.html", "markdown": "brief.md", "json": "brief.json"}
 
@@ -80,8 +81,7 @@ def draw_figures(brief: dict, folder: Path, workers=None) -> list[dict]:
         jobs.append((_advection_figure, (level["_fields"], folder / name, station, brief["area"])))
         figures.append({"file": name, "kind": "advection_map", "level": level["level"],
                         "level_hPa": level["level_hPa"],
-                        "caption": f"Temperature advection at {'the ' if surface else ''}"
-                        f"{level_name(level)}, valid "
+                        "caption": f"Temperature advection at {level_phrase(entry_level(level))}, valid "
                         f"{formatting.time_text(brief['valid_time'])}: red warm, blue cold (K/h); "
                         "isotherms in \u00b0C; barbs in kt."})
     prof = brief["profile"]

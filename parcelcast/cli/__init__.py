@@ -111,8 +111,11 @@ def console() -> None:
 
     status = main()
     atexit._run_exitfuncs()  # the handlers an ordinary exit runs, before os._exit skips the rest
-    sys.stdout.flush()
-    sys.stderr.flush()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except OSError:  # a reader that went away (``parcelcast ... | head``): nothing to tell it
+            pass
     os._exit(status)
 
 

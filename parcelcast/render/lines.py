@@ -24,18 +24,17 @@ def project_points(ax, lon, lat):
     return xyz[:, 0].reshape(lon.shape), xyz[:, 1].reshape(lon.shape)
 
 
-def projected_collection(ax, polylines, collection_class=None, **style):
-    """One collection of ``polylines`` (each an ``N x 2`` array of longitude, latitude in
-    degrees) in the map coordinates of ``ax``; returns ``(collection, projected arrays)``.
+def projected_collection(ax, polylines, **style):
+    """One ``LineCollection`` of ``polylines`` (each an ``N x 2`` array of longitude, latitude
+    in degrees) in the map coordinates of ``ax``; returns ``(collection, projected arrays)``.
 
-    ``collection_class`` defaults to matplotlib's ``LineCollection``; ``style`` goes to it.
-    The collection is not added to the axes (``ax.add_collection(c, autolim=False)``).
+    ``style`` goes to the collection, which is not added to the axes
+    (``ax.add_collection(c, autolim=False)``).
     """
     from matplotlib.collections import LineCollection
 
-    collection_class = collection_class or LineCollection
     if not polylines:
-        return collection_class([], **style), []
+        return LineCollection([], **style), []
     sizes = [len(p) for p in polylines]
     stacked = np.concatenate([np.asarray(p, dtype=np.float64).reshape(-1, 2) for p in polylines])
     x, y = project_points(ax, stacked[:, 0], stacked[:, 1])
@@ -46,7 +45,7 @@ def projected_collection(ax, polylines, collection_class=None, **style):
     jump[np.cumsum(sizes)[:-1] - 1] = False  # from one polyline to the next is no step
     xy[1:][jump] = np.nan
     projected = np.split(xy, np.cumsum(sizes)[:-1])
-    return collection_class(projected, **style), projected
+    return LineCollection(projected, **style), projected
 
 
 def shape_polylines(geometries) -> list[np.ndarray]:

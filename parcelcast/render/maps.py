@@ -335,14 +335,13 @@ def advection_map(level_fields, path=None, station=None, area=None, ax=None, tit
                   loc="upper left", bbox_to_anchor=(0.0, -3.0), fontsize=8, frameon=False)
     bar.ax.text(0.0, -5.0, DISCLAIMER_SHORT, transform=bar.ax.transAxes, ha="left", va="top",
                 fontsize=7, color="0.35")
-    from parcelcast.selection import level_label
+    from parcelcast.selection import is_surface, level_phrase
 
     level = (float(level_fields["level"].values) / 100.0 if "level" in level_fields.coords
              else level_fields.attrs.get("level", "surface"))  # no pressure level: the surface
     when = formatting.time_text(level_fields["time"].values) if "time" in level_fields.coords else ""
     wind = level_fields.attrs.get("wind", "actual")
-    where = (f"the {level_label(level)}" if isinstance(level, str)  # the 10-m wind, always analysed
-             else f"{level_label(level)} ({wind} wind)")
+    where = level_phrase(level) + ("" if is_surface(level) else f" ({wind} wind)")  # 10 m: analysed
     head = title or f"Temperature advection at {where}, valid {when}"
     ax.set_title(f"{head}\nisotherms \u00b0C every {interval}; barbs: {wind} wind in kt; "
                  f"source: {source_text(level_fields)}", fontsize=10)
